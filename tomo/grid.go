@@ -1,0 +1,78 @@
+package tomo
+
+// Registration says how grid coordinates relate to the data: at grid nodes
+// (values sampled at the coordinates) or at cell centres (values are cell
+// averages and the coordinates are the centres of cells of equal size).
+type Registration int
+
+const (
+	// NodeRegistered grids sample the field at the coordinates; a global
+	// node-registered grid may contain the poles.
+	NodeRegistered Registration = iota
+	// CellRegistered grids hold cell averages at cell centres; a global
+	// cell-registered grid never contains the poles.
+	CellRegistered
+)
+
+// String returns "node" or "cell".
+func (r Registration) String() string {
+	if r == CellRegistered {
+		return "cell"
+	}
+	return "node"
+}
+
+// Provenance records where a grid came from.
+type Provenance struct {
+	Path   string // file path as given by the user ("-" for stdin, "demo" for the embedded scenario)
+	SHA256 string // hex sha256 of the file's bytes
+	Format string // "text", "csv", "netcdf-cdf1", "netcdf-cdf2", "netcdf-cdf5", "demo"
+}
+
+// Grid is a scalar field on a regular longitude-latitude grid with an
+// optional depth axis.
+//
+// Values are stored depth-major, then latitude, then longitude:
+// Values[k*len(Lat)*len(Lon) + j*len(Lon) + i] is at Depth[k], Lat[j], Lon[i].
+// A grid without a depth axis has Depth == nil and len(Values) ==
+// len(Lat)*len(Lon). Lon is ascending in [0, 360); Lat is ascending (south
+// to north) after reading, whatever the order in the file.
+type Grid struct {
+	Lon   []float64 // degrees east, ascending, in [0, 360)
+	Lat   []float64 // degrees north, ascending
+	Depth []float64 // km below the surface, ascending; nil for a single layer
+	// Values holds the field in the units named by Units.
+	Values []float64
+	// Valid marks the points that carry data; nil means all are valid.
+	Valid []bool
+	// Name is the variable's name in the file (e.g. the CSV column or netCDF
+	// variable); Units its units as given ("percent", "fraction", "km/s", or
+	// the file's own string).
+	Name, Units string
+	Reg         Registration
+	Source      Provenance
+}
+
+// NLon returns len(g.Lon).
+func (g *Grid) NLon() int { return len(g.Lon) }
+
+// NLat returns len(g.Lat).
+func (g *Grid) NLat() int { return len(g.Lat) }
+
+// NDepth returns the number of depth levels (1 for a grid without a depth
+// axis).
+func (g *Grid) NDepth() int {
+	if g.Depth == nil {
+		return 1
+	}
+	return len(g.Depth)
+}
+
+// At returns the value and validity at depth index k, latitude index j and
+// longitude index i.
+func (g *Grid) At(k, j, i int) (v float64, ok bool) {
+	n := (k*len(g.Lat)+j)*len(g.Lon) + i
+	v = g.Values[n]
+	ok = g.Valid == nil || g.Valid[n]
+	return v, ok
+}

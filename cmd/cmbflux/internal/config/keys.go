@@ -1,0 +1,117 @@
+// Package config holds the build parameters of cmbflux as one table of keys
+// shared by the command-line flags, build.yaml files and sweep files, and
+// parses those files with line and column numbers in every error.
+package config
+
+import (
+	"sort"
+	"strings"
+)
+
+// Kind is the type of a parameter's value.
+type Kind int
+
+const (
+	// String values are taken as written.
+	String Kind = iota
+	// Float values are decimal numbers.
+	Float
+	// Int values are decimal integers.
+	Int
+	// Bool values are true or false (flags without a value mean true).
+	Bool
+	// List values are comma-separated on the command line or YAML sequences.
+	List
+)
+
+// Key describes one build parameter: its long flag name (also its key in
+// YAML files), the kind of its value and its help text.
+type Key struct {
+	Name  string
+	Kind  Kind
+	Arg   string // placeholder in help, e.g. "FILE"
+	Group string // help section
+	Usage string
+	// NoVary keys cannot be varied in a sweep (they would make run folders
+	// collide or escape the sweep's output folder).
+	NoVary bool
+}
+
+// Help groups in the order they are printed.
+var Groups = []string{"Input", "Pattern", "Amplitude", "Output"}
+
+// BuildKeys lists every build parameter.
+var BuildKeys = []Key{
+	{Name: "input", Kind: String, Arg: "FILE", Group: "Input", Usage: "tomography grid (text, CSV or netCDF); - reads standard input"},
+	{Name: "demo", Kind: Bool, Group: "Input", Usage: "use the embedded demo scenario instead of --input"},
+	{Name: "var", Kind: String, Arg: "NAME", Group: "Input", Usage: "variable (netCDF) or column (CSV) holding dVs; default: the only candidate"},
+	{Name: "depth", Kind: Float, Arg: "KM", Group: "Input", Usage: "use the layer nearest to this depth (km)"},
+	{Name: "depth-range", Kind: String, Arg: "KM:KM", Group: "Input", Usage: "average the layers in this depth range, weighted by radius^2"},
+	{Name: "lmax", Kind: Int, Arg: "N", Group: "Pattern", Usage: "truncation degree (default 12)"},
+	{Name: "taper", Kind: String, Arg: "SPEC", Group: "Pattern", Usage: "none, cos:L1:L2 (cosine roll-off from degree L1 to L2) or gauss:DEG (Gaussian, half width in degrees)"},
+	{Name: "rotate", Kind: Float, Arg: "DEG", Group: "Pattern", Usage: "turn the pattern eastward about the rotation axis by DEG degrees"},
+	{Name: "qstar", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "heterogeneity q* = (q_max - q_min) / q_mean of the output field"},
+	{Name: "qmean", Kind: Float, Arg: "MW_M2", Group: "Amplitude", Usage: "mean CMB heat flux (mW/m^2)"},
+	{Name: "heatflow", Kind: Float, Arg: "TW", Group: "Amplitude", Usage: "total CMB heat flow (TW), instead of --qmean"},
+	{Name: "qad", Kind: Float, Arg: "MW_M2", Group: "Amplitude", Usage: "heat flux conducted down the core adiabat (mW/m^2)"},
+	{Name: "adiabatic-heatflow", Kind: Float, Arg: "TW", Group: "Amplitude", Usage: "adiabatic heat flow (TW), instead of --qad"},
+	{Name: "physical", Kind: Bool, Group: "Amplitude", Usage: "amplitude from physical constants instead of --qstar"},
+	{Name: "dlnvs-dt", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "physical mode: d ln Vs / dT (per K, negative, e.g. -2e-5)"},
+	{Name: "conductivity", Kind: Float, Arg: "K", Group: "Amplitude", Usage: "thermal conductivity (W/m/K): of the lowermost mantle in physical mode; for --quantity dtdr, of the side your code imposes the gradient on"},
+	{Name: "thickness", Kind: Float, Arg: "KM", Group: "Amplitude", Usage: "physical mode: thermal boundary layer thickness (km)"},
+	{Name: "quantity", Kind: String, Arg: "Q", Group: "Output", Usage: "flux, anomaly, relative, superadiabatic, dtdr or dvs (default flux)"},
+	{Name: "norm", Kind: String, Arg: "N", Group: "Output", Usage: "orthonormal, fully-normalized, schmidt or unnormalized (default orthonormal)"},
+	{Name: "condon-shortley", Kind: Bool, Group: "Output", Usage: "include the Condon-Shortley phase (-1)^m (default off)"},
+	{Name: "form", Kind: String, Arg: "F", Group: "Output", Usage: "real (cos/sin) or complex (default real)"},
+	{Name: "grid", Kind: String, Arg: "G", Group: "Output", Usage: "grid for grid outputs and diagnostics: gauss:NLAT, equiangular:N or lonlat:STEP (default lonlat:1)"},
+	{Name: "formats", Kind: List, Arg: "LIST", Group: "Output", Usage: "extra outputs, comma-separated: txt, json, csv, nc, geojson, png, svg, html (txt is always written)"},
+	{Name: "out", Kind: String, Arg: "DIR", Group: "Output", Usage: "output folder (created; must not exist or be empty unless --force)", NoVary: true},
+}
+
+var keyIndex = func() map[string]*Key {
+	m := make(map[string]*Key, len(BuildKeys))
+	for i := range BuildKeys {
+		m[BuildKeys[i].Name] = &BuildKeys[i]
+	}
+	return m
+}()
+
+// Lookup returns the key named name, or nil.
+func Lookup(name string) *Key { return keyIndex[name] }
+
+// Suggest returns the known key closest to name (by edit distance), or "".
+func Suggest(name string) string {
+	best, bestD := "", 4
+	names := make([]string, 0, len(keyIndex))
+	for n := range keyIndex {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		if d := distance(strings.ToLower(name), n); d < bestD {
+			best, bestD = n, d
+		}
+	}
+	return best
+}
+
+// distance is the Levenshtein edit distance.
+func distance(a, b string) int {
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		cur[0] = i
+		for j := 1; j <= len(b); j++ {
+			c := 1
+			if a[i-1] == b[j-1] {
+				c = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+c)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(b)]
+}

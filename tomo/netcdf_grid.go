@@ -653,4 +653,3 @@ func (r *ncReader) missing(v *netcdf.Var) (*ncMissing, error) {
 	}
 	return m, nil
 }
-

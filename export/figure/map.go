@@ -1,0 +1,565 @@
+package figure
+
+import (
+	"errors"
+	"fmt"
+	"image"
+	"image/color"
+	"io"
+	"math"
+
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// OutlineStyle is how an outline is stroked on a map.
+type OutlineStyle int
+
+// Outline styles. All are drawn in a near-black ink over a thin white
+// casing so that they stay visible on both ends of the colour scale.
+const (
+	// Solid is a continuous line.
+	Solid OutlineStyle = iota
+	// Dashed is a line of long dashes.
+	Dashed
+	// Dotted is a line of short dots.
+	Dotted
+)
+
+// Outline is a set of lines drawn over a map, such as the boundary of the
+// regions where the flux is below the adiabat.
+type Outline struct {
+	// Rings are the lines, each a sequence of (lon, lat) points in
+	// degrees. A ring whose last point equals its first is drawn closed.
+	// Lines that cross the map edge are cut there.
+	Rings [][][2]float64
+	// Label names the outline in the map's legend; empty leaves it out.
+	Label string
+	// Style is the stroke pattern.
+	Style OutlineStyle
+}
+
+// Marker is a labelled point on a map.
+type Marker struct {
+	// Lon and Lat are the position in degrees.
+	Lon, Lat float64
+	// Label is written beside the marker.
+	Label string
+}
+
+// Map is a global map of a scalar field on the sphere with a diverging
+// colour scale centred on a given value, a 30-degree graticule, outlines,
+// labelled extrema, a colour bar and a title.
+//
+// Exactly one of Grid and Field gives the field. The zero value of every
+// other field is a usable default.
+type Map struct {
+	// Title is written above the map.
+	Title string
+	// Grid is the field on a regular longitude-latitude grid, sampled by
+	// bilinear interpolation.
+	Grid *Grid
+	// Field is the field as a function of longitude and latitude in
+	// degrees; it is called once per map pixel, from one goroutine.
+	Field func(lon, lat float64) float64
+	// Projection is the map projection; the zero value is Mollweide
+	// centred on DefaultCentralLon.
+	Projection Projection
+	// Center is the value drawn in the centre colour, usually the mean of
+	// the field.
+	Center float64
+	// CenterLabel names Center in the colour-bar caption; empty means
+	// "mean".
+	CenterLabel string
+	// HalfRange is the distance from Center to either colour limit; zero
+	// means the largest |value - Center| on the map, so the scale is
+	// symmetric and no value saturates.
+	HalfRange float64
+	// Label names the quantity, such as "CMB heat flux".
+	Label string
+	// Units are the units of the values, such as "mW/m²".
+	Units string
+	// Outlines are drawn over the field, in order.
+	Outlines []Outline
+	// Markers are drawn over the field, after the extrema.
+	Markers []Marker
+	// NoExtrema leaves out the markers of the largest and smallest value.
+	NoExtrema bool
+	// Width and Height are the size in pixels (points in SVG); zero means
+	// 900 x 540.
+	Width, Height int
+}
+
+// WritePNG writes the map as a PNG image.
+func (m *Map) WritePNG(w io.Writer) error { return m.write(w, false) }
+
+// WriteSVG writes the map as an SVG document: the field is an embedded
+// PNG image, the graticule, outlines, markers and text are vectors.
+func (m *Map) WriteSVG(w io.Writer) error { return m.write(w, true) }
+
+func (m *Map) size() (int, int) {
+	w, h := m.Width, m.Height
+	if w == 0 {
+		w = 900
+	}
+	if h == 0 {
+		h = 540
+	}
+	return w, h
+}
+
+// mapLayout is the placement of the map on the canvas, in points.
+type mapLayout struct {
+	proj       Projection
+	cx, cy     float64 // centre of the map
+	scale      float64 // points per unit of projected coordinates
+	x0, y0     int     // bottom-left of the raster
+	nx, ny     int     // raster size in pixels
+	barY       float64 // top of the colour bar band
+	titleY     float64 // baseline region of the title
+	width      float64
+	xmax, ymax float64
+}
+
+func (l *mapLayout) pt(x, y float64) vg.Point {
+	return vg.Point{X: vg.Length(l.cx + x*l.scale), Y: vg.Length(l.cy + y*l.scale)}
+}
+
+func (m *Map) layout(w, h int) (*mapLayout, error) {
+	l := &mapLayout{proj: m.Projection.resolved(), width: float64(w)}
+	l.xmax, l.ymax = l.proj.Bounds()
+	const side, top, bottom = 24.0, 40.0, 92.0
+	aw, ah := float64(w)-2*side, float64(h)-top-bottom
+	if m.Title == "" {
+		ah += 18
+	}
+	if aw < 40 || ah < 20 {
+		return nil, fmt.Errorf("figure: map size %d x %d too small", w, h)
+	}
+	l.scale = math.Min(aw/(2*l.xmax), ah/(2*l.ymax))
+	l.nx = int(math.Ceil(2 * l.xmax * l.scale))
+	l.ny = int(math.Ceil(2 * l.ymax * l.scale))
+	l.x0 = int(math.Round((float64(w) - float64(l.nx)) / 2))
+	l.y0 = int(math.Round(bottom + (ah-float64(l.ny))/2))
+	l.cx = float64(l.x0) + float64(l.nx)/2
+	l.cy = float64(l.y0) + float64(l.ny)/2
+	l.barY = float64(l.y0) - 22
+	l.titleY = float64(h) - 12
+	return l, nil
+}
+
+// sampler returns the field as a function of (lon, lat) degrees.
+func (m *Map) sampler() (func(lon, lat float64) float64, error) {
+	switch {
+	case m.Grid != nil && m.Field != nil:
+		return nil, errors.New("figure: map has both Grid and Field, want one")
+	case m.Grid != nil:
+		if err := m.Grid.check(); err != nil {
+			return nil, err
+		}
+		return m.Grid.at, nil
+	case m.Field != nil:
+		return m.Field, nil
+	}
+	return nil, errors.New("figure: map has neither Grid nor Field")
+}
+
+// extremum is a located value.
+type extremum struct {
+	lon, lat, v float64
+	ok          bool
+}
+
+func (m *Map) write(out io.Writer, svg bool) error {
+	f, err := m.sampler()
+	if err != nil {
+		return err
+	}
+	if math.IsNaN(m.Center) || math.IsInf(m.Center, 0) {
+		return fmt.Errorf("figure: map centre value %v, want finite", m.Center)
+	}
+	if m.HalfRange < 0 || math.IsNaN(m.HalfRange) || math.IsInf(m.HalfRange, 0) {
+		return fmt.Errorf("figure: map half range %v, want positive or zero for automatic", m.HalfRange)
+	}
+	w, h := m.size()
+	l, err := m.layout(w, h)
+	if err != nil {
+		return err
+	}
+	// Sample the field at every pixel centre of the raster.
+	vals := make([]float64, l.nx*l.ny)
+	var hi, lo extremum
+	for r := range l.ny {
+		y := (float64(l.y0+l.ny-r) - 0.5 - l.cy) / l.scale
+		for c := range l.nx {
+			x := (float64(l.x0+c) + 0.5 - l.cx) / l.scale
+			lon, lat, ok := l.proj.Inverse(x, y)
+			v := math.NaN()
+			if ok {
+				v = f(lon, lat)
+				if !math.IsNaN(v) {
+					if !hi.ok || v > hi.v {
+						hi = extremum{lon, lat, v, true}
+					}
+					if !lo.ok || v < lo.v {
+						lo = extremum{lon, lat, v, true}
+					}
+				}
+			} else {
+				v = math.Inf(1) // outside the map
+			}
+			vals[r*l.nx+c] = v
+		}
+	}
+	if m.Grid != nil {
+		hi, lo = gridExtrema(m.Grid)
+	}
+	half := m.HalfRange
+	if half == 0 && hi.ok {
+		half = math.Max(hi.v-m.Center, m.Center-lo.v)
+	}
+	if !(half > 0) {
+		half = math.Max(math.Abs(m.Center)*1e-3, 1e-12)
+	}
+	sc := Scale{Center: m.Center, HalfRange: half}
+	img := image.NewRGBA(image.Rect(0, 0, l.nx, l.ny))
+	for i, v := range vals {
+		if math.IsInf(v, 1) {
+			continue // transparent
+		}
+		c := sc.Color(v)
+		img.Pix[4*i], img.Pix[4*i+1], img.Pix[4*i+2], img.Pix[4*i+3] = c.R, c.G, c.B, c.A
+	}
+	return render(out, svg, w, h, func(dc draw.Canvas) error {
+		dc.DrawImage(vg.Rectangle{
+			Min: vg.Point{X: vg.Length(l.x0), Y: vg.Length(l.y0)},
+			Max: vg.Point{X: vg.Length(l.x0 + l.nx), Y: vg.Length(l.y0 + l.ny)},
+		}, img)
+		m.drawGraticule(dc, l)
+		m.drawOutlines(dc, l)
+		m.drawBoundary(dc, l)
+		if !m.NoExtrema && hi.ok {
+			m.drawMarker(dc, l, hi.lon, hi.lat, "max "+formatValue(hi.v), true, 1)
+			m.drawMarker(dc, l, lo.lon, lo.lat, "min "+formatValue(lo.v), true, -1)
+		}
+		for _, mk := range m.Markers {
+			m.drawMarker(dc, l, mk.Lon, mk.Lat, mk.Label, false, 0)
+		}
+		if m.Title != "" {
+			dc.FillText(textStyle(17, true, inkText, draw.XCenter, draw.YTop),
+				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(l.titleY)}, m.Title)
+		}
+		m.drawColourBar(dc, l, sc)
+		return nil
+	})
+}
+
+// gridExtrema returns the largest and smallest non-NaN grid values; a
+// bilinear interpolant takes its extrema at grid nodes.
+func gridExtrema(g *Grid) (hi, lo extremum) {
+	for i := range g.NLat {
+		for j := range g.NLon {
+			v := g.Values[i*g.NLon+j]
+			if math.IsNaN(v) {
+				continue
+			}
+			if !hi.ok || v > hi.v {
+				lon, lat := g.lonLat(i, j)
+				hi = extremum{lon, lat, v, true}
+			}
+			if !lo.ok || v < lo.v {
+				lon, lat := g.lonLat(i, j)
+				lo = extremum{lon, lat, v, true}
+			}
+		}
+	}
+	return hi, lo
+}
+
+// projectLine projects a line of (lon, lat) points, densified to steps of
+// at most one degree, and cuts it where it crosses the map edge (the
+// meridian opposite the central one), so that no segment streaks across
+// the map.
+func projectLine(l *mapLayout, pts [][2]float64) [][]vg.Point {
+	if len(pts) == 0 {
+		return nil
+	}
+	lon0 := l.proj.CentralLon
+	var out [][]vg.Point
+	var cur []vg.Point
+	u := relLon(pts[0][0], lon0) * 180 / math.Pi
+	emit := func(u, lat float64) {
+		x, y := l.proj.Forward(lon0+u, lat)
+		cur = append(cur, l.pt(x, y))
+	}
+	emit(u, pts[0][1])
+	for k := 1; k < len(pts); k++ {
+		a, b := pts[k-1], pts[k]
+		du := wrapLon(b[0] - a[0])
+		dlat := b[1] - a[1]
+		n := int(math.Ceil(math.Max(math.Abs(du), math.Abs(dlat))))
+		if n < 1 {
+			n = 1
+		}
+		for s := 1; s <= n; s++ {
+			f0, f1 := float64(s-1)/float64(n), float64(s)/float64(n)
+			ua := u
+			ub := ua + du/float64(n)
+			la, lb := a[1]+f0*dlat, a[1]+f1*dlat
+			if ub > 180 || ub < -180 {
+				edge := math.Copysign(180, ub)
+				f := (edge - ua) / (ub - ua)
+				lc := la + f*(lb-la)
+				emit(edge, lc)
+				if len(cur) > 1 {
+					out = append(out, cur)
+				}
+				cur = nil
+				emit(-edge, lc)
+				ub -= 2 * edge
+			}
+			u = ub
+			emit(u, lb)
+		}
+	}
+	if len(cur) > 1 {
+		out = append(out, cur)
+	}
+	return out
+}
+
+func (m *Map) drawBoundary(dc draw.Canvas, l *mapLayout) {
+	var pts []vg.Point
+	lon0 := l.proj.CentralLon
+	for lat := -90.0; lat <= 90; lat++ {
+		x, y := l.proj.Forward(lon0+180, lat)
+		pts = append(pts, l.pt(x, y))
+	}
+	for lat := 90.0; lat >= -90; lat-- {
+		x, y := l.proj.Forward(lon0-180, lat)
+		pts = append(pts, l.pt(x, y))
+	}
+	dc.SetLineStyle(draw.LineStyle{Color: inkFrame, Width: 1.1})
+	dc.Stroke(polyPath(pts, true))
+}
+
+func (m *Map) drawGraticule(dc draw.Canvas, l *mapLayout) {
+	sty := draw.LineStyle{Color: inkGrid, Width: 0.6}
+	lon0 := l.proj.CentralLon
+	for lon := -150.0; lon <= 180; lon += 30 {
+		if math.Abs(math.Abs(relLon(lon, lon0))-math.Pi) < 1e-9 {
+			continue // the edge is drawn as the boundary
+		}
+		var line [][2]float64
+		for lat := -90.0; lat <= 90; lat += 2 {
+			line = append(line, [2]float64{lon, lat})
+		}
+		for _, seg := range projectLine(l, line) {
+			dc.StrokeLines(sty, seg)
+		}
+	}
+	for lat := -60.0; lat <= 60; lat += 30 {
+		line := [][2]float64{{lon0 - 180, lat}, {lon0 - 60, lat}, {lon0 + 60, lat}, {lon0 + 179.999999, lat}}
+		for _, seg := range projectLine(l, line) {
+			dc.StrokeLines(sty, seg)
+		}
+	}
+	// Labels: latitudes outside the west edge, longitudes just north of
+	// the equator.
+	ls := textStyle(9.5, false, inkMuted, draw.XRight, draw.YCenter)
+	for lat := -60.0; lat <= 60; lat += 30 {
+		x, y := l.proj.Forward(lon0-180, lat)
+		p := l.pt(x, y)
+		p.X -= 4
+		dc.FillText(ls, p, latName(lat))
+	}
+	es := textStyle(9.5, false, inkMuted, draw.XLeft, draw.YBottom)
+	for lon := -150.0; lon <= 180; lon += 30 {
+		if math.Abs(math.Abs(relLon(lon, lon0))-math.Pi) < 1e-9 {
+			continue
+		}
+		x, y := l.proj.Forward(lon, 0)
+		p := l.pt(x, y)
+		p.X += 3
+		p.Y += 2
+		haloText(dc, es, p, lonName(lon))
+	}
+}
+
+// haloText writes s with a thin light halo so that it reads on any colour.
+func haloText(dc draw.Canvas, sty draw.TextStyle, p vg.Point, s string) {
+	halo := sty
+	halo.Color = color.NRGBA{0xff, 0xff, 0xff, 0xb0}
+	for _, d := range [][2]vg.Length{{-0.8, 0}, {0.8, 0}, {0, -0.8}, {0, 0.8}} {
+		dc.FillText(halo, vg.Point{X: p.X + d[0], Y: p.Y + d[1]}, s)
+	}
+	dc.FillText(sty, p, s)
+}
+
+func latName(lat float64) string {
+	switch {
+	case lat > 0:
+		return fmt.Sprintf("%g°N", lat)
+	case lat < 0:
+		return fmt.Sprintf("%g°S", -lat)
+	}
+	return "0°"
+}
+
+func lonName(lon float64) string {
+	lon = wrapLon(lon)
+	switch {
+	case lon == 180:
+		return "180°"
+	case lon > 0:
+		return fmt.Sprintf("%g°E", lon)
+	case lon < 0:
+		return fmt.Sprintf("%g°W", -lon)
+	}
+	return "0°"
+}
+
+func outlineDashes(s OutlineStyle) []vg.Length {
+	switch s {
+	case Dashed:
+		return []vg.Length{7, 4}
+	case Dotted:
+		return []vg.Length{1.6, 2.6}
+	}
+	return nil
+}
+
+func (m *Map) drawOutlines(dc draw.Canvas, l *mapLayout) {
+	for _, o := range m.Outlines {
+		var segs [][]vg.Point
+		for _, ring := range o.Rings {
+			segs = append(segs, projectLine(l, ring)...)
+		}
+		casing := draw.LineStyle{Color: color.NRGBA{0xff, 0xff, 0xff, 0xc0}, Width: 3.2}
+		ink := draw.LineStyle{Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 1.5, Dashes: outlineDashes(o.Style)}
+		if o.Style == Dotted {
+			ink.Width = 1.8
+		}
+		for _, s := range segs {
+			dc.StrokeLines(casing, s)
+		}
+		for _, s := range segs {
+			dc.StrokeLines(ink, s)
+		}
+	}
+}
+
+// drawMarker draws a labelled marker: an upward triangle for a maximum
+// (dir > 0), a downward one for a minimum (dir < 0), a ringed dot else.
+func (m *Map) drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label string, extreme bool, dir int) {
+	x, y := l.proj.Forward(lon, lat)
+	p := l.pt(x, y)
+	const r = 5.5
+	var path vg.Path
+	switch {
+	case dir > 0:
+		path = polyPath([]vg.Point{{X: p.X, Y: p.Y + r}, {X: p.X - r*0.95, Y: p.Y - r*0.6}, {X: p.X + r*0.95, Y: p.Y - r*0.6}}, true)
+	case dir < 0:
+		path = polyPath([]vg.Point{{X: p.X, Y: p.Y - r}, {X: p.X - r*0.95, Y: p.Y + r*0.6}, {X: p.X + r*0.95, Y: p.Y + r*0.6}}, true)
+	default:
+		path.Move(vg.Point{X: p.X + 3.5, Y: p.Y})
+		path.Arc(p, 3.5, 0, 2*math.Pi)
+		path.Close()
+	}
+	dc.SetColor(white)
+	dc.Fill(path)
+	dc.SetLineStyle(draw.LineStyle{Color: inkText, Width: 1.2})
+	dc.Stroke(path)
+	if label == "" {
+		return
+	}
+	// Put the label on the side of the marker nearer the map centre.
+	sty := textStyle(10.5, extreme, inkText, draw.XLeft, draw.YCenter)
+	q := vg.Point{X: p.X + 8, Y: p.Y}
+	if x > 0 {
+		sty.XAlign = draw.XRight
+		q.X = p.X - 8
+	}
+	tw := sty.Width(label)
+	th := sty.FontExtents().Height
+	bx := q.X - 2
+	if sty.XAlign == draw.XRight {
+		bx = q.X - tw - 2
+	}
+	dc.SetColor(color.NRGBA{0xff, 0xff, 0xff, 0xd8})
+	dc.Fill(rectPath(bx, q.Y-th/2-1, bx+tw+4, q.Y+th/2+1))
+	dc.FillText(sty, q, label)
+}
+
+func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
+	const barH = 13.0
+	barW := math.Min(480, l.width*0.55)
+	hasLegend := false
+	for _, o := range m.Outlines {
+		if o.Label != "" {
+			hasLegend = true
+		}
+	}
+	bx := (l.width - barW) / 2
+	if hasLegend {
+		bx = 40
+	}
+	top := l.barY
+	bar := image.NewRGBA(image.Rect(0, 0, 256, 1))
+	for i := range 256 {
+		bar.Set(i, 0, Diverging(2*(float64(i)+0.5)/256-1))
+	}
+	dc.DrawImage(vg.Rectangle{
+		Min: vg.Point{X: vg.Length(bx), Y: vg.Length(top - barH)},
+		Max: vg.Point{X: vg.Length(bx + barW), Y: vg.Length(top)},
+	}, bar)
+	dc.SetLineStyle(draw.LineStyle{Color: inkFrame, Width: 0.8})
+	dc.Stroke(rectPath(vg.Length(bx), vg.Length(top-barH), vg.Length(bx+barW), vg.Length(top)))
+	lo, hi := sc.Center-sc.HalfRange, sc.Center+sc.HalfRange
+	ts := textStyle(10.5, false, inkText, draw.XCenter, draw.YTop)
+	tick := draw.LineStyle{Color: inkFrame, Width: 0.8}
+	for _, v := range niceTicks(lo, hi, 6) {
+		x := bx + (v-lo)/(hi-lo)*barW
+		dc.StrokeLine2(tick, vg.Length(x), vg.Length(top-barH), vg.Length(x), vg.Length(top-barH-4))
+		dc.FillText(ts, vg.Point{X: vg.Length(x), Y: vg.Length(top - barH - 6)}, formatValue(v))
+	}
+	// The centre: a small notch above the bar.
+	cxp := bx + barW/2
+	dc.SetColor(inkText)
+	dc.Fill(polyPath([]vg.Point{{X: vg.Length(cxp), Y: vg.Length(top)}, {X: vg.Length(cxp - 4), Y: vg.Length(top + 5)}, {X: vg.Length(cxp + 4), Y: vg.Length(top + 5)}}, true))
+	cl := m.CenterLabel
+	if cl == "" {
+		cl = "mean"
+	}
+	caption := m.Label
+	if m.Units != "" {
+		if caption != "" {
+			caption += " "
+		}
+		caption += "(" + m.Units + ")"
+	}
+	if caption != "" {
+		caption += ";  "
+	}
+	caption += "colour centre = " + cl + " " + formatValue(sc.Center)
+	dc.FillText(textStyle(11.5, false, inkText, draw.XCenter, draw.YTop),
+		vg.Point{X: vg.Length(bx + barW/2), Y: vg.Length(top - barH - 22)}, caption)
+	if !hasLegend {
+		return
+	}
+	// Outline legend to the right of the colour bar.
+	x := bx + barW + 40
+	y := top - 4
+	ls := textStyle(11, false, inkText, draw.XLeft, draw.YCenter)
+	for _, o := range m.Outlines {
+		if o.Label == "" {
+			continue
+		}
+		seg := []vg.Point{{X: vg.Length(x), Y: vg.Length(y)}, {X: vg.Length(x + 30), Y: vg.Length(y)}}
+		ink := draw.LineStyle{Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 1.5, Dashes: outlineDashes(o.Style)}
+		dc.StrokeLines(ink, seg)
+		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, o.Label)
+		y -= 17
+	}
+}
+

@@ -562,4 +562,3 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
 		y -= 17
 	}
 }
-

@@ -1,0 +1,180 @@
+package sh
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// trRandCoeffs returns canonical coefficients with entries uniform in
+// [-1, 1) (S at m = 0 zero), from a fixed seed.
+func trRandCoeffs(lmax int, seed uint64) *Coeffs {
+	r := rand.New(rand.NewPCG(seed, 1))
+	c := NewCoeffs(lmax, Canonical)
+	for l := 0; l <= lmax; l++ {
+		for m := 0; m <= l; m++ {
+			i := Index(l, m)
+			c.C[i] = 2*r.Float64() - 1
+			if m > 0 {
+				c.S[i] = 2*r.Float64() - 1
+			}
+		}
+	}
+	return c
+}
+
+// trMaxRel returns max |a - b| / max |b| over both C and S.
+func trMaxRel(a, b *Coeffs) float64 {
+	var d, n float64
+	for i := range b.C {
+		d = math.Max(d, math.Max(math.Abs(a.C[i]-b.C[i]), math.Abs(a.S[i]-b.S[i])))
+		n = math.Max(n, math.Max(math.Abs(b.C[i]), math.Abs(b.S[i])))
+	}
+	return d / n
+}
+
+// TestTransformRoundTrip checks analysis(synthesis(c)) = c: Gauss-Legendre
+// quadrature with n nodes is exact for polynomials of degree 2n-1
+// (Abramowitz & Stegun 25.4.29), and the discrete Fourier sums over nlon
+// equally spaced longitudes are exact for orders |m +- m'| < nlon, so a
+// grid with nlat > lmax and nlon > 2 lmax reproduces the coefficients up
+// to rounding. The same holds for the Driscoll-Healy grid with N = 2L+2
+// (Driscoll & Healy 1994, Theorem 3).
+func TestTransformRoundTrip(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		lmax int
+		g    *Grid
+		tol  float64
+	}{
+		{"GL/lmax=0", 0, NewGaussLegendre(1, 1), 1e-14},
+		{"GL/lmax=1", 1, NewGaussLegendre(2, 4), 1e-14},
+		{"GL/lmax=7/odd-nlon", 7, NewGaussLegendre(8, 15), 1e-14},
+		{"GL/lmax=8/odd-nlat", 8, NewGaussLegendre(9, 18), 1e-14},
+		{"GL/lmax=31/lon0", 31, &Grid{Kind: GaussLegendre, Colat: NewGaussLegendre(32, 64).Colat, Weight: NewGaussLegendre(32, 64).Weight, NLon: 64, Lon0: 0.3}, 1e-13},
+		{"GL/lmax=63/oversampled", 63, NewGaussLegendre(80, 160), 1e-13},
+		{"GL/lmax=127", 127, NewGaussLegendre(128, 256), 1e-13},
+		{"DH/lmax=7", 7, NewDriscollHealy(16), 1e-13},
+		{"DH/lmax=64", 64, NewDriscollHealy(130), 1e-13},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := trRandCoeffs(tc.lmax, 7)
+			tr := NewTransform(tc.lmax, tc.g)
+			f := tr.Synthesis(nil, c)
+			got := tr.Analysis(nil, f)
+			if d := trMaxRel(got, c); d > tc.tol {
+				t.Errorf("round trip max relative error %.3g > %.1g", d, tc.tol)
+			}
+		})
+	}
+}
+
+// TestTransformRoundTrip511 is the round trip at lmax 511 on the Gauss-Legendre grid
+// 512 x 1024 (the exactness argument of TestTransformRoundTrip), required to 1e-12.
+func TestTransformRoundTrip511(t *testing.T) {
+	if testing.Short() {
+		t.Skip("lmax 511 in -short mode")
+	}
+	const lmax, tol = 511, 1e-12
+	c := trRandCoeffs(lmax, 11)
+	tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
+	got := tr.Analysis(nil, tr.Synthesis(nil, c))
+	d := trMaxRel(got, c)
+	t.Logf("lmax 511 round trip max relative error %.3g", d)
+	if d > tol {
+		t.Errorf("round trip max relative error %.3g > %.1g", d, tol)
+	}
+}
+
+// TestSynthesisPointwise compares the fast synthesis with the pointwise
+// evaluator (Coeffs.Evaluate, an independent route through the
+// Holmes & Featherstone 2002 recursion, one point at a time) on grids with
+// poles, an equator ring, unpaired rings and an offset longitude origin.
+func TestSynthesisPointwise(t *testing.T) {
+	const tol = 1e-12
+	for _, tc := range []struct {
+		name string
+		lmax int
+		g    *Grid
+	}{
+		{"GL", 20, NewGaussLegendre(21, 42)},
+		{"node-registered/poles", 20, NewLonLat(19, 36, NodeRegistered)},
+		{"cell-registered", 25, NewLonLat(18, 36, CellRegistered)},
+		{"aliased/nlon<2L", 30, NewLonLat(7, 16, NodeRegistered)},
+		{"rings/unpaired", 40, NewRings([]float64{0.01, 0.5, 1.2, 1.3, 2.9, math.Pi}, 9, -2.5)},
+		{"high-degree/near-pole", 700, NewRings([]float64{1e-3, 0.05, 1.0, math.Pi - 1e-3}, 8, 0.1)},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := trRandCoeffs(tc.lmax, 3)
+			f := NewTransform(tc.lmax, tc.g).Synthesis(nil, c)
+			var scale, worst float64
+			for i, th := range tc.g.Colat {
+				for j := range tc.g.NLon {
+					want := c.Evaluate(th, tc.g.Lon(j))
+					scale = math.Max(scale, math.Abs(want))
+					worst = math.Max(worst, math.Abs(f[i*tc.g.NLon+j]-want))
+				}
+			}
+			if worst > tol*scale {
+				t.Errorf("max |fast - pointwise| = %.3g, %.3g relative to max |f| > %.1g", worst, worst/scale, tol)
+			}
+		})
+	}
+}
+
+// TestTransformOrthonormality synthesizes single harmonics and analyses them: the
+// Gram matrix of the real orthonormal harmonics is the identity
+// (definition of the orthonormal convention, see Normalization), and the
+// Gauss-Legendre quadrature reproduces it exactly for degree <= nlat-1.
+func TestTransformOrthonormality(t *testing.T) {
+	const lmax, tol = 12, 1e-14
+	tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+1))
+	c := NewCoeffs(lmax, Canonical)
+	for l := 0; l <= lmax; l++ {
+		for m := 0; m <= l; m++ {
+			for s := 0; s < 2; s++ {
+				if s == 1 && m == 0 {
+					continue
+				}
+				clear(c.C)
+				clear(c.S)
+				if s == 0 {
+					c.C[Index(l, m)] = 1
+				} else {
+					c.S[Index(l, m)] = 1
+				}
+				got := tr.Analysis(nil, tr.Synthesis(nil, c))
+				if d := trMaxRel(got, c); d > tol {
+					t.Fatalf("Y_%d%d (sine %v): Gram row off the identity by %.3g", l, m, s == 1, d)
+				}
+			}
+		}
+	}
+}
+
+func TestTransformConcurrent(t *testing.T) {
+	// Several goroutines share one plan; each must get its own result
+	// (the identity of TestTransformRoundTrip).
+	const lmax = 40
+	tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
+	errs := make(chan error, 4)
+	for k := range 4 {
+		go func() {
+			c := trRandCoeffs(lmax, uint64(100+k))
+			var err error
+			for range 5 {
+				got := tr.Analysis(nil, tr.Synthesis(nil, c))
+				if d := trMaxRel(got, c); d > 1e-13 {
+					err = fmt.Errorf("goroutine %d: round trip error %.3g", k, d)
+				}
+			}
+			errs <- err
+		}()
+	}
+	for range 4 {
+		if err := <-errs; err != nil {
+			t.Error(err)
+		}
+	}
+}

@@ -45,4 +45,18 @@ type ReadOptions struct {
 	// LonName, LatName and DepthName name the coordinate columns (CSV) or
 	// variables (netCDF) when automatic recognition is not wanted.
 	LonName, LatName, DepthName string
+	// Vertical says what the third coordinate is: "depth" (km below the
+	// surface) or "radius" (km from the Earth's centre, converted to depth
+	// as EarthRadiusKm - r). "" decides from the column or variable name
+	// (depth, radius, r, ...) and takes depth for a text file without a
+	// "# columns:" line.
+	Vertical string
+	// Missing lists sentinel values that mark missing data, in addition to
+	// NaN (e.g. -999 or 99999). A value equal to a sentinel is masked.
+	Missing []float64
+}
+
+// inputErr builds an *InputError with a formatted cause.
+func inputErr(file string, line int, format string, args ...any) *InputError {
+	return &InputError{File: file, Line: line, Err: fmt.Errorf(format, args...)}
 }

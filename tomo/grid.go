@@ -51,7 +51,39 @@ type Grid struct {
 	Name, Units string
 	Reg         Registration
 	Source      Provenance
+	// Title is a one-line description of the model (from a "# title:"
+	// comment, a netCDF title attribute, or the demo's name); "" if none.
+	Title string
+	// Notes lists what the reader did to bring the file to this form
+	// (longitude convention converted, latitude order reversed, radius
+	// converted to depth, seam column merged), for the user's record.
+	Notes []string
+	// Warnings lists suspicious but usable features of the input (identical
+	// duplicate points merged, partial latitude coverage, an all-missing
+	// depth level). They are meant to be printed, never dropped.
+	Warnings []string
 }
+
+// DLon returns the longitude spacing in degrees (360/NLon for the global
+// grids the readers accept).
+func (g *Grid) DLon() float64 {
+	if len(g.Lon) < 2 {
+		return 360
+	}
+	return (g.Lon[len(g.Lon)-1] - g.Lon[0]) / float64(len(g.Lon)-1)
+}
+
+// DLat returns the latitude spacing in degrees, (Lat[last]-Lat[0])/(NLat-1).
+func (g *Grid) DLat() float64 {
+	if len(g.Lat) < 2 {
+		return 180
+	}
+	return (g.Lat[len(g.Lat)-1] - g.Lat[0]) / float64(len(g.Lat)-1)
+}
+
+// Index returns the position in Values of depth index k, latitude index j
+// and longitude index i: (k*NLat + j)*NLon + i.
+func (g *Grid) Index(k, j, i int) int { return (k*len(g.Lat)+j)*len(g.Lon) + i }
 
 // NLon returns len(g.Lon).
 func (g *Grid) NLon() int { return len(g.Lon) }

@@ -1,0 +1,120 @@
+package tomo
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+)
+
+// Magic numbers recognised by ReadBytes.
+const (
+	// netCDF classic format specification (Unidata): "CDF" followed by the
+	// version byte 1, 2 or 5.
+	netcdfMagic = "CDF"
+	// HDF5 format specification (The HDF Group): the superblock signature
+	// used by netCDF-4 files.
+	hdf5Magic = "\x89HDF\r\n\x1a\n"
+)
+
+// ReadFile reads a tomography grid from the file at path, or from standard
+// input when path is "-". See ReadBytes for the formats.
+func ReadFile(path string, opts ReadOptions) (*Grid, error) {
+	var data []byte
+	var err error
+	if path == "-" {
+		data, err = io.ReadAll(os.Stdin)
+	} else {
+		data, err = os.ReadFile(path)
+	}
+	if err != nil {
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return nil, &InputError{File: path, Err: fmt.Errorf("cannot read the file: %w", err)}
+	}
+	return ReadBytes(path, data, opts)
+}
+
+// Read reads a tomography grid from r; name labels it in messages and in
+// the provenance ("-" for standard input). See ReadBytes for the formats.
+func Read(name string, r io.Reader, opts ReadOptions) (*Grid, error) {
+	data, err := io.ReadAll(r)
+	if err != nil {
+		return nil, &InputError{File: name, Err: fmt.Errorf("cannot read: %w", err)}
+	}
+	return ReadBytes(name, data, opts)
+}
+
+// ReadBytes reads a tomography grid from the bytes of a file; name labels
+// it in messages and in the provenance.
+//
+// The format is opts.Format when set ("text", "csv", "netcdf"); otherwise
+// it is detected from the content: netCDF classic by its magic number
+// "CDF\x01", "CDF\x02" or "CDF\x05"; a netCDF-4 (HDF5) file is refused
+// with advice to convert it; CSV when the first line that is neither blank
+// nor a '#' comment contains a comma; whitespace-separated text otherwise.
+// Source records name, the sha256 of data and the format.
+func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
+	format := opts.Format
+	if format == "" {
+		format = DetectFormat(data)
+	}
+	var g *Grid
+	var err error
+	switch format {
+	case "hdf5":
+		return nil, inputErr(name, 0, "this is a netCDF-4 (HDF5) file, which cmbflux does not read; convert it to netCDF classic with `nccopy -k classic in.nc out.nc` (or `nccopy -k cdf5` for 64-bit data) from the standard netCDF utilities")
+	case "netcdf":
+		g, err = ReadNetCDF(name, data, opts)
+	case "text":
+		g, err = ReadText(name, data, opts)
+	case "csv":
+		g, err = ReadCSV(name, data, opts)
+	default:
+		return nil, inputErr(name, 0, "format %q not understood: use text, csv or netcdf", format)
+	}
+	if err != nil {
+		return nil, err
+	}
+	sum := sha256.Sum256(data)
+	g.Source.Path = name
+	g.Source.SHA256 = hex.EncodeToString(sum[:])
+	if g.Source.Format == "" {
+		g.Source.Format = format
+	}
+	return g, nil
+}
+
+// DetectFormat names the format of a file from its first bytes: "netcdf",
+// "hdf5", "csv" or "text", by the rules documented on ReadBytes.
+func DetectFormat(data []byte) string {
+	if len(data) >= 4 && string(data[:3]) == netcdfMagic && (data[3] == 1 || data[3] == 2 || data[3] == 5) {
+		return "netcdf"
+	}
+	if bytes.HasPrefix(data, []byte(hdf5Magic)) {
+		return "hdf5"
+	}
+	for rest := data; len(rest) > 0; {
+		line := rest
+		if i := bytes.IndexByte(rest, '\n'); i >= 0 {
+			line, rest = rest[:i], rest[i+1:]
+		} else {
+			rest = nil
+		}
+		t := bytes.TrimSpace(line)
+		if len(t) == 0 || t[0] == '#' {
+			continue
+		}
+		if bytes.IndexByte(t, ',') >= 0 {
+			return "csv"
+		}
+		return "text"
+	}
+	return "text"
+}
+

@@ -1,0 +1,299 @@
+package tomo
+
+import (
+	"errors"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"cmbflux/tomo/netcdf"
+)
+
+// ncgenFile turns the committed CDL file testdata/cdl/<base> into a
+// netCDF file with Unidata's ncgen (Debian netcdf-bin), using the kind
+// named on the file's "// ncgen -k KIND" line, and returns its bytes. It
+// skips the test when ncgen is missing, except under CI=true.
+func ncgenFile(t testing.TB, base string) (string, []byte) {
+	t.Helper()
+	cdl := filepath.Join("..", "testdata", "cdl", base)
+	src, err := os.ReadFile(cdl)
+	if err != nil {
+		t.Fatal(err)
+	}
+	kind := ""
+	for _, line := range strings.Split(string(src), "\n") {
+		if k, ok := strings.CutPrefix(line, "// ncgen -k "); ok {
+			kind = strings.TrimSpace(k)
+		}
+	}
+	if kind == "" {
+		t.Fatalf("%s: no \"// ncgen -k KIND\" line", cdl)
+	}
+	ncgen, err := exec.LookPath("ncgen")
+	if err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("ncgen (Debian package netcdf-bin) is required under CI=true")
+		}
+		t.Skip("ncgen not installed (Debian package netcdf-bin)")
+	}
+	out := filepath.Join(t.TempDir(), strings.TrimSuffix(base, ".cdl")+".nc")
+	if msg, err := exec.Command(ncgen, "-k", kind, "-o", out, cdl).CombinedOutput(); err != nil {
+		t.Fatalf("ncgen -k %s %s: %v\n%s", kind, cdl, err, msg)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out, b
+}
+
+// The value formulas of testdata/cdl/gen.go: each grid value encodes the
+// coordinates it was written at (invented data).
+func ncLonNorm(lon float64) float64 { return math.Mod(math.Mod(lon, 360)+360, 360) }
+func ncF2(lon, lat, _ float64) float64 { return ncLonNorm(lon) + 1000*(lat+90) }
+func ncF3(lon, lat, d float64) float64 {
+	return ncF2(lon, lat, 0) + 1e6*math.Round((d-2691)/100)
+}
+func ncPacked(lon, lat, d float64) float64 {
+	s := math.Floor(ncLonNorm(lon)/45) + 10*math.Floor((lat+90)/45) + 100*math.Round((d-2691)/100)
+	return s*float64(float32(0.01)) + float64(float32(-1)) // CF-1.8 section 8.1: unpacked = packed*scale_factor + add_offset
+}
+
+func TestReadNetCDFFromNcgen(t *testing.T) {
+	const tol = 1e-9 // values are exact in float32; packed values carry float32 scale_factor rounding only
+	tests := []struct {
+		cdl     string
+		format  string
+		lon     []float64
+		lat     []float64
+		depth   []float64
+		reg     Registration
+		f       func(lon, lat, d float64) float64
+		invalid func(lon, lat, d float64) bool
+	}{
+		{cdl: "grid_node_cdf1.cdl", format: "netcdf-cdf1",
+			lon: []float64{0, 45, 90, 135, 180, 225, 270, 315}, lat: []float64{-90, -45, 0, 45, 90},
+			reg: NodeRegistered, f: ncF2},
+		{cdl: "grid_desc_cdf2.cdl", format: "netcdf-cdf2",
+			lon: []float64{0, 45, 90, 135, 180, 225, 270, 315}, lat: []float64{-90, -45, 0, 45, 90},
+			reg: NodeRegistered, f: ncF2,
+			invalid: func(lon, lat, _ float64) bool { // missing_value and valid_range, CF-1.8 section 2.5.1
+				return lat == 45 && lon == 90 || lat == -45 && lon == 180
+			}},
+		{cdl: "grid_depth_m_cdf5.cdl", format: "netcdf-cdf5",
+			lon: []float64{22.5, 67.5, 112.5, 157.5, 202.5, 247.5, 292.5, 337.5}, lat: []float64{-67.5, -22.5, 22.5, 67.5},
+			depth: []float64{2691, 2791, 2891}, reg: CellRegistered, f: ncF3,
+			invalid: func(_, lat, d float64) bool { return d == 2791 && lat == 22.5 }}, // _FillValue, CF-1.8 section 2.5.1
+		{cdl: "grid_radius_packed_cdf1.cdl", format: "netcdf-cdf1",
+			lon: []float64{22.5, 67.5, 112.5, 157.5, 202.5, 247.5, 292.5, 337.5}, lat: []float64{-67.5, -22.5, 22.5, 67.5},
+			depth: []float64{2691, 2791, 2891}, reg: CellRegistered, f: ncPacked}, // depth = 6371 km - radius (PREM)
+		{cdl: "grid_record_cdf2.cdl", format: "netcdf-cdf2",
+			lon: []float64{0, 90, 180, 270}, lat: []float64{-90, 0, 90},
+			depth: []float64{2691, 2791}, reg: NodeRegistered, f: ncF3,
+			invalid: func(lon, lat, _ float64) bool { return lat == 0 && lon == 270 }}, // default fill of double, netCDF spec
+	}
+	for _, tt := range tests {
+		t.Run(tt.cdl, func(t *testing.T) {
+			path, data := ncgenFile(t, tt.cdl)
+			g, err := ReadNetCDF(path, data, ReadOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if g.Source.Format != tt.format || g.Source.Path != path || len(g.Source.SHA256) != 64 {
+				t.Errorf("Source = %+v, want format %s", g.Source, tt.format)
+			}
+			if g.Name != "dvs" || g.Units != "percent" {
+				t.Errorf("Name, Units = %q, %q; want dvs, percent", g.Name, g.Units)
+			}
+			if g.Reg != tt.reg {
+				t.Errorf("Reg = %v, want %v", g.Reg, tt.reg)
+			}
+			eq := func(what string, got, want []float64) {
+				if len(got) != len(want) {
+					t.Fatalf("%s = %v, want %v", what, got, want)
+				}
+				for i := range got {
+					if math.Abs(got[i]-want[i]) > 1e-9 {
+						t.Fatalf("%s = %v, want %v", what, got, want)
+					}
+				}
+			}
+			eq("Lon", g.Lon, tt.lon)
+			eq("Lat", g.Lat, tt.lat)
+			eq("Depth", g.Depth, tt.depth)
+			nbad := 0
+			for k := range g.NDepth() {
+				d := math.NaN()
+				if g.Depth != nil {
+					d = g.Depth[k]
+				}
+				for j, lat := range g.Lat {
+					for i, lon := range g.Lon {
+						v, ok := g.At(k, j, i)
+						wantBad := tt.invalid != nil && tt.invalid(lon, lat, d)
+						if ok == wantBad {
+							t.Errorf("depth %g lat %g lon %g: valid = %v, want %v", d, lat, lon, ok, !wantBad)
+						}
+						if !ok {
+							nbad++
+							continue
+						}
+						if want := tt.f(lon, lat, d); math.Abs(v-want) > tol*math.Max(1, math.Abs(want)) {
+							t.Errorf("depth %g lat %g lon %g: value %v, want %v", d, lat, lon, v, want)
+						}
+					}
+				}
+			}
+			if (g.Valid == nil) != (nbad == 0) {
+				t.Errorf("Valid is nil = %v with %d invalid points", g.Valid == nil, nbad)
+			}
+		})
+	}
+}
+
+// ncCDL writes CDL text to a temporary file and runs ncgen on it.
+func ncCDL(t *testing.T, kind, cdl string) []byte {
+	t.Helper()
+	dir := t.TempDir()
+	p := filepath.Join(dir, "x.cdl")
+	if err := os.WriteFile(p, []byte("// ncgen -k "+kind+"\n"+cdl), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ncgen, err := exec.LookPath("ncgen")
+	if err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("ncgen (Debian package netcdf-bin) is required under CI=true")
+		}
+		t.Skip("ncgen not installed (Debian package netcdf-bin)")
+	}
+	out := filepath.Join(dir, "x.nc")
+	if msg, err := exec.Command(ncgen, "-k", kind, "-o", out, p).CombinedOutput(); err != nil {
+		t.Fatalf("ncgen: %v\n%s", err, msg)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+func TestReadNetCDFBadGrids(t *testing.T) {
+	const head = `netcdf x {
+dimensions: lon = 4 ; lat = 3 ;
+variables:
+`
+	tests := []struct {
+		name string
+		cdl  string
+		opts ReadOptions
+		want []string // substrings of the message
+	}{
+		{name: "non-monotonic latitude", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double v(lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 45, 0 ; v = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable lat", "not strictly monotonic", "index 2", "CF-1.8 section 1.2"}},
+		{name: "missing latitude coordinate", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double v(lat, lon) ;
+data: lon = 0, 90, 180, 270 ; v = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"no latitude coordinate variable", "degrees_north", "v(lat,lon)"}},
+		{name: "all fill", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ float v(lat, lon) ; v:_FillValue = -1.f ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; v = -1,-1,-1,-1,-1,-1,-1,-1,-1,-1,-1,-1 ; }`,
+			want: []string{"variable v", "every value is missing"}},
+		{name: "two candidates", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ; double b(lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
+			want: []string{"2 candidate value variables (a, b)", "variable option"}},
+		{name: "unknown variable option", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`, opts: ReadOptions{Var: "dvs"},
+			want: []string{"variable dvs", "no such variable", "a(lat,lon)"}},
+		{name: "fill in coordinate", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: lon = 0, 90, _, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable lon", "missing", "CF-1.8 section 5"}},
+		{name: "uneven longitude", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: lon = 0, 90, 100, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable lon", "not evenly spaced"}},
+		{name: "valid_range with valid_min", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ; a:valid_range = 0., 1. ; a:valid_min = 0. ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable a", "valid_range given together with valid_min"}},
+		{name: "third dimension without units", cdl: `netcdf x {
+dimensions: lon = 4 ; lat = 3 ; t = 2 ;
+variables:
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double t(t) ;
+ double a(t, lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; t = 1, 2 ; }`,
+			want: []string{"variable a", "dimension t", "not longitude, latitude, or a depth"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			data := ncCDL(t, "classic", tt.cdl)
+			_, err := ReadNetCDF("bad.nc", data, tt.opts)
+			if err == nil {
+				t.Fatal("no error")
+			}
+			if !errors.Is(err, ErrBadInput) {
+				t.Errorf("error %v does not wrap ErrBadInput", err)
+			}
+			msg := err.Error()
+			if !strings.HasPrefix(msg, "bad.nc: ") {
+				t.Errorf("message %q does not start with the file name", msg)
+			}
+			for _, w := range tt.want {
+				if !strings.Contains(msg, w) {
+					t.Errorf("message %q lacks %q", msg, w)
+				}
+			}
+		})
+	}
+}
+
+func TestReadNetCDFOptions(t *testing.T) {
+	// Coordinates without CF units, named by the options; depth named too.
+	data := ncCDL(t, "classic", `netcdf x {
+dimensions: x = 4 ; y = 3 ; z = 2 ;
+variables:
+ double x(x) ; double y(y) ; double z(z) ; z:units = "km" ;
+ float a(z, y, x) ; float b(y, x) ;
+data: x = 0, 90, 180, 270 ; y = -60, 0, 60 ; z = 2800, 2700 ;
+ a = 1,2,3,4,5,6,7,8,9,10,11,12, 13,14,15,16,17,18,19,20,21,22,23,24 ; }`)
+	g, err := ReadNetCDF("opt.nc", data, ReadOptions{Var: "a", LonName: "x", LatName: "y", DepthName: "z"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Depth 2700 km is the second level in the file: values 13..24.
+	if v, _ := g.At(0, 0, 0); v != 13 || g.Depth[0] != 2700 || g.Reg != NodeRegistered {
+		t.Errorf("At(0,0,0) = %v, Depth = %v, Reg = %v; want 13, [2700 2800], node", v, g.Depth, g.Reg)
+	}
+}
+
+func TestReadNetCDFHeaderErrorsCarryFile(t *testing.T) {
+	_, err := ReadNetCDF("x.nc", []byte("\x89HDF\r\n\x1a\n0000000000"), ReadOptions{})
+	if !errors.Is(err, netcdf.ErrHDF5) || !errors.Is(err, ErrBadInput) || !strings.Contains(err.Error(), "nccopy -k classic") ||
+		!strings.HasPrefix(err.Error(), "x.nc: ") {
+		t.Errorf("HDF5 error = %v", err)
+	}
+}

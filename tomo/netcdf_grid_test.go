@@ -52,7 +52,7 @@ func ncgenFile(t testing.TB, base string) (string, []byte) {
 
 // The value formulas of testdata/cdl/gen.go: each grid value encodes the
 // coordinates it was written at (invented data).
-func ncLonNorm(lon float64) float64 { return math.Mod(math.Mod(lon, 360)+360, 360) }
+func ncLonNorm(lon float64) float64    { return math.Mod(math.Mod(lon, 360)+360, 360) }
 func ncF2(lon, lat, _ float64) float64 { return ncLonNorm(lon) + 1000*(lat+90) }
 func ncF3(lon, lat, d float64) float64 {
 	return ncF2(lon, lat, 0) + 1e6*math.Round((d-2691)/100)

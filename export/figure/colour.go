@@ -16,7 +16,7 @@ type lab struct{ L, A, B float64 }
 // and the two arms differ along the blue-yellow axis that the common
 // red-green colour-vision deficiencies keep.
 var divergingStops = [5]lab{
-	{27, 10, -44},
+	{27, 14, -44},
 	{62, -10, -30},
 	{95, 0, 4},
 	{62, 24, 52},
@@ -60,12 +60,35 @@ type Scale struct {
 	HalfRange float64
 }
 
+// lutSize is the number of precomputed colours of Scale.Color: odd, so
+// that the centre is one of them, and fine enough that neighbours differ by
+// less than one 8-bit level.
+const lutSize = 2049
+
+// divergingLUT holds Diverging at lutSize equally spaced t in [-1, 1].
+var divergingLUT = func() []color.RGBA {
+	t := make([]color.RGBA, lutSize)
+	for i := range t {
+		t[i] = Diverging(2*float64(i)/(lutSize-1) - 1)
+	}
+	return t
+}()
+
 // T returns the position (v - Center) / HalfRange of v on the scale, not
 // clamped.
 func (s Scale) T(v float64) float64 { return (v - s.Center) / s.HalfRange }
 
-// Color returns the colour of value v.
-func (s Scale) Color(v float64) color.RGBA { return Diverging(s.T(v)) }
+// Color returns the colour of value v: Diverging(s.T(v)) with t rounded to
+// one of 2049 equally spaced levels in [-1, 1], which leaves the centre and
+// the limits exact.
+func (s Scale) Color(v float64) color.RGBA {
+	t := s.T(v)
+	if math.IsNaN(t) {
+		return NoDataColor
+	}
+	t = math.Max(-1, math.Min(1, t))
+	return divergingLUT[int(math.Round((t+1)/2*(lutSize-1)))]
+}
 
 // xyz returns the CIE XYZ tristimulus values (Y of white = 1) of c.
 // CIE 15:2004 formulas for L*a*b*, D65 white (0.95047, 1, 1.08883).

@@ -142,7 +142,10 @@ func formatValue(v float64) string {
 	} else {
 		s = strconv.FormatFloat(v, 'g', 4, 64)
 	}
-	return strings.Replace(s, "-", "\u2212", 1)
+	if strings.HasPrefix(s, "-") {
+		s = "\u2212" + s[1:]
+	}
+	return s
 }
 
 // niceTicks returns round tick values covering [lo, hi] with about n

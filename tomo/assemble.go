@@ -158,8 +158,8 @@ func (b *builder) regular(ax axis, what string, global bool) ([]float64, error) 
 				what, c[i-1], c[i], k, dmin, int(k)-1, what)
 		}
 		return nil, inputErr(b.file, b.line(ax.firstRec[i]),
-			"%s spacing changes from %g to %g at %s %g: the grid must be regular",
-			what, dmin, step, what, c[i])
+			"the %s step from %g to %g is %g, but the smallest step is %g: the grid must be evenly spaced",
+			what, c[i-1], c[i], step, dmin)
 	}
 	d := (c[n-1] - c[0]) / float64(n-1)
 	if global {

@@ -77,7 +77,7 @@ func ReadCSV(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	csvErr := func(err error) error {
 		var pe *csv.ParseError
 		if errors.As(err, &pe) {
-			return inputErr(name, pe.Line, "column %d: %v", pe.Column, pe.Err)
+			return inputErr(name, pe.Line, "character %d: %v", pe.Column, pe.Err)
 		}
 		return inputErr(name, 0, "%v", err)
 	}

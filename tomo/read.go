@@ -117,4 +117,3 @@ func DetectFormat(data []byte) string {
 	}
 	return "text"
 }
-

@@ -110,6 +110,9 @@ func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 		}
 		if plan == nil {
 			firstData = lineNo
+			if allWords(fields[:nf]) {
+				return nil, inputErr(name, lineNo, "a row of words (%s) where numbers were expected: a text grid has no header row; make it a comment ('# columns: %s') or save the file as CSV", bytes.Join(fields[:nf], []byte(" ")), bytes.Join(fields[:nf], []byte(" ")))
+			}
 			p, err := textPlan(nf, titles, haveHeader, opts)
 			if err != nil {
 				return nil, inputErr(name, lineNo, "%v", err)
@@ -159,6 +162,16 @@ func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 		g.Units = plan.units
 	}
 	return g, nil
+}
+
+// allWords reports whether no field is a number or a missing-value token.
+func allWords(f [][]byte) bool {
+	for _, b := range f {
+		if _, ok := parseFloat(b); ok || isMissingToken(b) {
+			return false
+		}
+	}
+	return true
 }
 
 // textPlan assigns column roles for a text file with nf fields.

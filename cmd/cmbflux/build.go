@@ -1,0 +1,158 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"cmbflux/cmd/cmbflux/internal/config"
+	"cmbflux/cmd/cmbflux/internal/outdir"
+)
+
+const buildHelp = `Usage: cmbflux build (--input FILE | --demo) --qstar X (--qmean MW_M2 | --heatflow TW) --out DIR [flags]
+       cmbflux build --config build.yaml [flags]
+
+Writes one heat-flux boundary condition at the core-mantle boundary: the
+lowermost layer of a tomography model, mapped linearly to heat flux (slow,
+hot mantle takes less heat from the core), expanded in spherical harmonics,
+truncated at --lmax, tapered, and scaled so that the total flux has the
+heterogeneity q* = (q_max - q_min) / q_mean and the mean --qmean. In
+physical mode (--physical) the amplitude follows from d ln Vs / dT, the
+conductivity and the boundary-layer thickness instead.
+
+DIR receives coefficients.txt (columns l m cos sin under a # header),
+summary.json (q*, extrema and where they are, the area fractions with
+negative and sub-adiabatic flux, warnings), manifest.yaml (sha256 of every
+file) and the --formats asked for. DIR must not exist or be empty (or give
+--force); a failed build leaves no DIR behind.
+
+A YAML file given with --config holds the same parameters under their flag
+names (qstar: 5, depth-range: 2700:2891, formats: [txt, png]); flags given
+as well override it. Relative paths in the file are relative to its folder.
+`
+
+const buildExample = `
+Example (the embedded demo scenario, q* = 2.3 on a mean of 80 mW/m^2, Schmidt
+semi-normalized coefficients to degree 8):
+
+  cmbflux build --demo --qstar 2.3 --qmean 80 --qad 60 --lmax 8 \
+      --norm schmidt --formats json,png --out bc
+
+Check the convention line in coefficients.txt against the documentation of
+the code that will read it before starting a simulation.
+`
+
+// buildOpts are the flags of build that are not build parameters.
+type buildOpts struct {
+	config string
+	force  bool
+	quiet  bool
+}
+
+func runBuild(stdout, stderr io.Writer, args []string) error {
+	p := newParser("build", stdout, buildHelp, buildExample)
+	p.buildKeys()
+	var o buildOpts
+	p.stringVar(&o.config, "config", "FILE", "read the build parameters from a YAML file (- for standard input); flags override it")
+	p.boolVar(&o.force, "force", "replace a non-empty output folder")
+	p.boolVar(&o.quiet, "quiet", "print nothing but warnings and errors")
+	pos, err := p.parse(args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return usagef("build", "unexpected argument %q; build takes only flags", pos[0])
+	}
+	set := p.keys
+	if o.config != "" {
+		data, name, err := readInput(o.config)
+		if err != nil {
+			return err
+		}
+		file, err := config.ParseBuild(name, data)
+		if err != nil {
+			return err
+		}
+		set = file.Merge(p.keys)
+	}
+	sp, err := config.Resolve(set)
+	if err != nil {
+		return err
+	}
+	if sp.Out == "" {
+		return usagef("build", "no output folder: give --out DIR")
+	}
+	if err := validateSpec(sp); err != nil {
+		return err
+	}
+	sum, err := buildFolder(context.Background(), newCache(), sp, sp.Out, o.force, set)
+	if err != nil {
+		return err
+	}
+	for _, w := range sum.Warnings {
+		fmt.Fprintln(stderr, "cmbflux: warning: "+w)
+	}
+	if !o.quiet {
+		printSummary(stdout, sp.Out, sum)
+	}
+	return nil
+}
+
+// buildFolder runs the pipeline into a staged folder and renames it to out
+// when every file is written.
+func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, force bool, set config.Set) (*Summary, error) {
+	st, err := outdir.New(out, force)
+	if err != nil {
+		return nil, err
+	}
+	defer st.Abort()
+	sum, err := produce(ctx, c, sp, set, st)
+	if err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if err := st.Commit(); err != nil {
+		return nil, err
+	}
+	return sum, nil
+}
+
+// readInput reads a file, or standard input for "-"; the returned name is
+// what errors should call it.
+func readInput(path string) ([]byte, string, error) {
+	if path == "-" {
+		data, err := io.ReadAll(stdin)
+		return data, "<stdin>", err
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, path, inputErrorf("%s: no such file", path)
+		}
+		return nil, path, err
+	}
+	return data, path, nil
+}
+
+func printSummary(w io.Writer, out string, s *Summary) {
+	unit := s.Units
+	fmt.Fprintf(w, "wrote %s/\n", filepath.ToSlash(out))
+	fmt.Fprintf(w, "  quantity     %s (%s), lmax %d, taper %s\n", s.Quantity, unit, s.LMax, s.Taper)
+	fmt.Fprintf(w, "  convention   %s, %s form\n", s.Convention, s.Form)
+	fmt.Fprintf(w, "  q*           %.4g (peak-to-peak over mean of the total flux)\n", s.QStar)
+	if s.QMean != nil {
+		fmt.Fprintf(w, "  q_mean       %.4g mW/m^2 (%.4g TW)\n", *s.QMean, *s.HeatFlowTW)
+		fmt.Fprintf(w, "  q_max        %.4g mW/m^2 at lon %.1f, lat %.1f\n", *s.QMax, s.QMaxLonLat[0], s.QMaxLonLat[1])
+		fmt.Fprintf(w, "  q_min        %.4g mW/m^2 at lon %.1f, lat %.1f\n", *s.QMin, s.QMinLonLat[0], s.QMinLonLat[1])
+	}
+	fmt.Fprintf(w, "  negative     %.2f %% of the CMB\n", 100*s.AreaNegative)
+	if s.AreaSubadiabatic != nil {
+		fmt.Fprintf(w, "  sub-adiabatic %.2f %% of the CMB\n", 100**s.AreaSubadiabatic)
+	}
+	fmt.Fprintf(w, "  files        %s\n", strings.Join(s.Files, " "))
+}

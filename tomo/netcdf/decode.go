@@ -136,7 +136,7 @@ func (h *hdr) count(field string, minItem int64) (int64, error) {
 		return 0, err
 	}
 	if rest := h.size - h.off; minItem > 0 && n > rest/minItem {
-		return 0, h.fail(off, field, ErrCorrupt, "claims %d entries of at least %d bytes each, but only %d bytes follow", n, minItem, rest)
+		return 0, h.fail(off, field, ErrTruncated, "claims %d entries of at least %d bytes each, but only %d bytes follow (truncated file or corrupt header)", n, minItem, rest)
 	}
 	return n, nil
 }

@@ -78,7 +78,7 @@ var badCases = []badCase{
 	{file: "nc-begin-beyond-end.nc", data: func(t testing.TB) []byte {
 		b := encode(t, badBase(), CDF1)
 		f, _ := DecodeBytes(b)
-		hdrEnd := int(f.Vars[0].begin) // data of the first variable follows the header
+		hdrEnd := int(f.Vars[0].begin)        // data of the first variable follows the header
 		return put32(b, hdrEnd-4, 0x7FFFFF00) // begin of dvs, the header's last field
 	}, kind: ErrTruncated, field: "begin", vr: "dvs", msg: "byte offset 2147483392"},
 	{file: "nc-dim-count-billions.nc", data: func(t testing.TB) []byte {

@@ -183,9 +183,9 @@ func TestReadTextAssembly(t *testing.T) {
 			fileLon: nil,
 		},
 		{
-			name:    "columns line reorders",
-			text:    "# columns: lat lon dvs\n" + swapFirstTwo(gridText(steps(0, 90, 4), steps(-45, 90, 2), nil, fieldText, 8)),
-			lon:     steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered, fileLon: same,
+			name: "columns line reorders",
+			text: "# columns: lat lon dvs\n" + swapFirstTwo(gridText(steps(0, 90, 4), steps(-45, 90, 2), nil, fieldText, 8)),
+			lon:  steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered, fileLon: same,
 		},
 	}
 	for _, tc := range tests {
@@ -444,10 +444,10 @@ func TestDetectFormat(t *testing.T) {
 	tests := []struct {
 		data, want string
 	}{
-		{"CDF\x01\x00", "netcdf"}, // netCDF classic format specification: magic "CDF" 0x01
-		{"CDF\x02\x00", "netcdf"}, // 64-bit offset variant
-		{"CDF\x05\x00", "netcdf"}, // 64-bit data variant
-		{"CDF\x03\x00", "text"},   // not a netCDF version
+		{"CDF\x01\x00", "netcdf"},         // netCDF classic format specification: magic "CDF" 0x01
+		{"CDF\x02\x00", "netcdf"},         // 64-bit offset variant
+		{"CDF\x05\x00", "netcdf"},         // 64-bit data variant
+		{"CDF\x03\x00", "text"},           // not a netCDF version
 		{"\x89HDF\r\n\x1a\n\x00", "hdf5"}, // HDF5 format specification, superblock signature
 		{"# a, comment\n\n0 0 1\n", "text"},
 		{"# comment\nlon,lat,v\n", "csv"},

@@ -7,8 +7,6 @@ import (
 	"sort"
 	"strconv"
 	"strings"
-
-	"cmbflux/tomo"
 )
 
 // DefaultRadiusKm is the reference radius written when Meta.RadiusKm is
@@ -110,10 +108,10 @@ func (m *Meta) provenance() []kv {
 // fmtFloat prints v so that strconv.ParseFloat gives back the same bits.
 func fmtFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// ErrBadInput is wrapped by every error that reports a malformed input file;
-// it is the same sentinel as tomo.ErrBadInput, so the command line maps both
-// to one exit status.
-var ErrBadInput = tomo.ErrBadInput
+// ErrBadInput is wrapped by every error that reports a malformed input file
+// read by this package (the command line maps it, like tomo.ErrBadInput, to
+// exit status 2).
+var ErrBadInput = errors.New("bad input")
 
 // InputError reports a problem in a file read by this package. It prints as
 // "file:line: cause", or "file: field: cause" where no line applies.

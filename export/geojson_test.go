@@ -1,0 +1,281 @@
+package export
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/ctessum/geom/encoding/geojson"
+)
+
+const deg = math.Pi / 180
+
+// smallCircle returns n vertices at angular distance alpha (degrees) from
+// (lon0, lat0), counter-clockwise seen from outside the sphere when ccw,
+// by the destination-point formula of spherical trigonometry (common
+// practice): lat = asin(sin p1 cos d + cos p1 sin d cos b),
+// lon = l1 + atan2(sin b sin d cos p1, cos d - sin p1 sin lat).
+func smallCircle(lon0, lat0, alpha float64, n int, ccw bool) [][2]float64 {
+	p1, l1, d := lat0*deg, lon0*deg, alpha*deg
+	out := make([][2]float64, n)
+	for i := range n {
+		b := 2 * math.Pi * float64(i) / float64(n) // bearing, clockwise from north
+		if ccw {
+			b = -b
+		}
+		lat := math.Asin(math.Sin(p1)*math.Cos(d) + math.Cos(p1)*math.Sin(d)*math.Cos(b))
+		lon := l1 + math.Atan2(math.Sin(b)*math.Sin(d)*math.Cos(p1), math.Cos(d)-math.Sin(p1)*math.Sin(lat))
+		out[i] = [2]float64{math.Remainder(lon/deg, 360), lat / deg}
+	}
+	return out
+}
+
+// capArea is the area of a spherical cap of angular radius alpha (degrees)
+// on a sphere of radius r: 2 pi r^2 (1 - cos alpha) (Archimedes; any
+// handbook of spherical geometry).
+func capArea(r, alpha float64) float64 { return 2 * math.Pi * r * r * (1 - math.Cos(alpha*deg)) }
+
+type fc struct {
+	Type     string `json:"type"`
+	Features []struct {
+		Type     string          `json:"type"`
+		Geometry json.RawMessage `json:"geometry"`
+		Props    map[string]any  `json:"properties"`
+	} `json:"features"`
+}
+
+type geometry struct {
+	Type        string          `json:"type"`
+	Coordinates json.RawMessage `json:"coordinates"`
+}
+
+func shoelace(r [][]float64) float64 {
+	s := 0.0
+	for i := 0; i+1 < len(r); i++ {
+		s += r[i][0]*r[i+1][1] - r[i+1][0]*r[i][1]
+	}
+	return s / 2
+}
+
+// checkRFC7946 checks a Polygon or MultiPolygon against RFC 7946: positions
+// of two numbers [lon, lat] with lon in [-180, 180] and lat in [-90, 90]
+// (sections 3.1.1, 4), linear rings closed with at least four positions
+// (3.1.6), exterior counter-clockwise and holes clockwise (3.1.6), and it
+// must parse with ctessum/geom's GeoJSON decoder. It returns the polygons.
+func checkRFC7946(t *testing.T, raw json.RawMessage) [][][][]float64 {
+	t.Helper()
+	var g geometry
+	if err := json.Unmarshal(raw, &g); err != nil {
+		t.Fatal(err)
+	}
+	var polys [][][][]float64
+	switch g.Type {
+	case "Polygon":
+		var p [][][]float64
+		if err := json.Unmarshal(g.Coordinates, &p); err != nil {
+			t.Fatal(err)
+		}
+		polys = [][][][]float64{p}
+	case "MultiPolygon":
+		if err := json.Unmarshal(g.Coordinates, &polys); err != nil {
+			t.Fatal(err)
+		}
+	default:
+		t.Fatalf("geometry type %q", g.Type)
+	}
+	if _, err := geojson.Decode(raw); err != nil {
+		t.Errorf("ctessum/geom cannot decode the geometry: %v", err)
+	}
+	for k, p := range polys {
+		for i, r := range p {
+			if len(r) < 4 {
+				t.Errorf("polygon %d ring %d has %d positions, RFC 7946 3.1.6 wants >= 4", k, i, len(r))
+				continue
+			}
+			if r[0][0] != r[len(r)-1][0] || r[0][1] != r[len(r)-1][1] {
+				t.Errorf("polygon %d ring %d is not closed", k, i)
+			}
+			for _, q := range r {
+				if len(q) != 2 || q[0] < -180 || q[0] > 180 || q[1] < -90 || q[1] > 90 {
+					t.Fatalf("polygon %d ring %d: position %v outside [-180, 180] x [-90, 90]", k, i, q)
+				}
+			}
+			if a := shoelace(r); i == 0 && a <= 0 || i > 0 && a >= 0 {
+				t.Errorf("polygon %d ring %d: shoelace area %v: exterior must be counter-clockwise, holes clockwise", k, i, a)
+			}
+		}
+	}
+	return polys
+}
+
+func writeOne(t *testing.T, rings [][][2]float64, props map[string]any) (*fc, []byte) {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := WriteOutlines(&buf, []Outline{{Rings: rings, Props: props}}, &Meta{RadiusKm: 3480, Units: "mW/m^2"}); err != nil {
+		t.Fatal(err)
+	}
+	var c fc
+	if err := json.Unmarshal(buf.Bytes(), &c); err != nil {
+		t.Fatalf("%v\n%s", err, buf.String())
+	}
+	if c.Type != "FeatureCollection" || len(c.Features) != 1 || c.Features[0].Type != "Feature" {
+		t.Fatalf("not a FeatureCollection of one Feature: %s", buf.String()[:200])
+	}
+	return &c, buf.Bytes()
+}
+
+func relErr(got, want float64) float64 { return math.Abs(got-want) / math.Abs(want) }
+
+// A cap of radius 20 degrees centred on the antimeridian: RFC 7946 section
+// 3.1.9 wants it cut into two polygons at 180 degrees; its area must match
+// the spherical cap formula and its centroid the cap's centre.
+func TestOutlineAcrossAntimeridian(t *testing.T) {
+	const n, alpha, r = 1440, 20.0, 3480.0
+	c, out := writeOne(t, [][][2]float64{smallCircle(180, 10, alpha, n, true)}, map[string]any{"level": -1.0})
+	f := c.Features[0]
+	polys := checkRFC7946(t, f.Geometry)
+	if len(polys) != 2 {
+		t.Fatalf("%d polygons, want 2 (cut at the antimeridian)", len(polys))
+	}
+	var sides [2]bool
+	for _, p := range polys {
+		lo, hi := 180.0, -180.0
+		for _, q := range p[0] {
+			lo, hi = math.Min(lo, q[0]), math.Max(hi, q[0])
+		}
+		sides[0] = sides[0] || hi == 180 && lo > 0
+		sides[1] = sides[1] || lo == -180 && hi < 0
+	}
+	if !sides[0] || !sides[1] {
+		t.Errorf("pieces do not end on +180 and -180: %v", sides)
+	}
+	// The inscribed polygon of n great-circle chords falls short of the
+	// cap by a relative amount of order (pi/n)^2.
+	want := capArea(r, alpha)
+	if e := relErr(f.Props[PropAreaKm2].(float64), want); e > 2e-5 {
+		t.Errorf("area %v km^2, cap formula %v (relative error %v)", f.Props[PropAreaKm2], want, e)
+	}
+	if e := relErr(f.Props[PropAreaFraction].(float64), want/(4*math.Pi*r*r)); e > 2e-5 {
+		t.Errorf("area fraction %v", f.Props[PropAreaFraction])
+	}
+	lon, lat := f.Props[PropCentroidLon].(float64), f.Props[PropCentroidLat].(float64)
+	if math.Abs(math.Abs(lon)-180) > 1e-6 || math.Abs(lat-10) > 1e-6 {
+		t.Errorf("centroid (%v, %v), want (180, 10)", lon, lat)
+	}
+	if f.Props["level"] != -1.0 {
+		t.Errorf("user property lost: %v", f.Props)
+	}
+	// Identical inputs, identical bytes.
+	_, again := writeOne(t, [][][2]float64{smallCircle(180, 10, alpha, n, true)}, map[string]any{"level": -1.0})
+	if !bytes.Equal(out, again) {
+		t.Error("two writes differ")
+	}
+}
+
+// A ring around the north pole, run eastward, bounds the polar cap; the
+// polygon follows the map's top edge (latitude 90).
+func TestOutlinePolarCap(t *testing.T) {
+	const n, r = 3600, 3480.0
+	ring := make([][2]float64, n)
+	for i := range ring {
+		ring[i] = [2]float64{-170 + 360*float64(i)/n, 70}
+	}
+	c, _ := writeOne(t, [][][2]float64{ring}, nil)
+	f := c.Features[0]
+	polys := checkRFC7946(t, f.Geometry)
+	if len(polys) != 1 || len(polys[0]) != 1 {
+		t.Fatalf("want one polygon without holes, got %d", len(polys))
+	}
+	top := 0
+	for _, q := range polys[0][0] {
+		if q[1] == 90 {
+			top++
+		}
+	}
+	if top != 2 {
+		t.Errorf("%d vertices at latitude 90, want the two top corners", top)
+	}
+	// Great-circle chords between points of the latitude circle cut
+	// slightly into the cap: relative error of order (pi/n)^2.
+	if e := relErr(f.Props[PropAreaKm2].(float64), capArea(r, 20)); e > 1e-5 {
+		t.Errorf("area %v, cap formula %v (relative error %v)", f.Props[PropAreaKm2], capArea(r, 20), e)
+	}
+	if lat := f.Props[PropCentroidLat].(float64); math.Abs(lat-90) > 1e-9 {
+		t.Errorf("centroid latitude %v, want 90", lat)
+	}
+	// The same ring run westward bounds the rest of the sphere.
+	for i, j := 0, n-1; i < j; i, j = i+1, j-1 {
+		ring[i], ring[j] = ring[j], ring[i]
+	}
+	c, _ = writeOne(t, [][][2]float64{ring}, nil)
+	checkRFC7946(t, c.Features[0].Geometry)
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), 4*math.Pi*r*r-capArea(r, 20)); e > 1e-5 {
+		t.Errorf("complement area %v", c.Features[0].Props[PropAreaKm2])
+	}
+}
+
+// Two rings around the pole bound a zone between latitudes 60 and 70,
+// area 2 pi R^2 (sin 70 - sin 60) (Archimedes' hat-box theorem).
+func TestOutlineZone(t *testing.T) {
+	const n, r = 3600, 3480.0
+	var south, north [][2]float64
+	for i := range n {
+		south = append(south, [2]float64{360 * float64(i) / n, 60})
+		north = append(north, [2]float64{-360 * float64(i) / n, 70})
+	}
+	c, _ := writeOne(t, [][][2]float64{north, south}, nil)
+	polys := checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 1 || len(polys[0]) != 1 {
+		t.Fatalf("want one band polygon, got %v polygons", len(polys))
+	}
+	want := 2 * math.Pi * r * r * (math.Sin(70*deg) - math.Sin(60*deg))
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), want); e > 1e-5 {
+		t.Errorf("zone area %v, want %v", c.Features[0].Props[PropAreaKm2], want)
+	}
+}
+
+// An annulus across the antimeridian: the hole is cut too, and the area is
+// the difference of two caps.
+func TestOutlineHoleAcrossAntimeridian(t *testing.T) {
+	const r = 3480.0
+	rings := [][][2]float64{smallCircle(175, -30, 25, 2000, true), smallCircle(-178, -31, 8, 1000, false)}
+	c, _ := writeOne(t, rings, nil)
+	polys := checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 2 {
+		t.Fatalf("%d polygons, want 2", len(polys))
+	}
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), capArea(r, 25)-capArea(r, 8)); e > 1e-4 {
+		t.Errorf("area %v, want %v", c.Features[0].Props[PropAreaKm2], capArea(r, 25)-capArea(r, 8))
+	}
+	// A hole that does not cross: one polygon with one clockwise hole.
+	rings = [][][2]float64{smallCircle(30, 0, 25, 500, true), smallCircle(32, 1, 5, 200, false)}
+	c, _ = writeOne(t, rings, nil)
+	polys = checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 1 || len(polys[0]) != 2 {
+		t.Fatalf("want one polygon with one hole, got %d polygons", len(polys))
+	}
+	// A lone clockwise ring is a hole in the whole sphere.
+	c, _ = writeOne(t, [][][2]float64{smallCircle(30, 0, 5, 200, false)}, nil)
+	polys = checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 1 || len(polys[0]) != 2 {
+		t.Fatalf("want the map rectangle with one hole, got %v", polys)
+	}
+}
+
+func TestOutlineErrors(t *testing.T) {
+	for name, o := range map[string]Outline{
+		"two vertices": {Rings: [][][2]float64{{{0, 0}, {1, 1}}}},
+		"latitude":     {Rings: [][][2]float64{{{0, 0}, {1, 95}, {2, 0}}}},
+		"half turn":    {Rings: [][][2]float64{{{0, 0}, {180, 0}, {90, 10}}}},
+		"reserved":     {Rings: [][][2]float64{{{0, 0}, {1, 0}, {1, 1}}}, Props: map[string]any{PropAreaKm2: 1}},
+	} {
+		err := WriteOutlines(&bytes.Buffer{}, []Outline{o}, nil)
+		if err == nil {
+			t.Errorf("%s: no error", name)
+		} else if !strings.Contains(err.Error(), "outline 0") {
+			t.Errorf("%s: error %q does not name the outline", name, err)
+		}
+	}
+}

@@ -351,26 +351,53 @@ func (r *ncReader) read() (*Grid, error) {
 		return nil, err
 	}
 	nlon := len(srcLon)
-	g.Values = make([]float64, len(zIdx)*len(latIdx)*nlon)
-	valid := make([]bool, len(g.Values))
+	nrow := len(zIdx) * len(latIdx)
+	valid := make([]bool, nrow*nlon)
 	nvalid := 0
-	o := 0
-	for _, zk := range zIdx {
-		for _, yj := range latIdx {
-			base := zk*sz + yj*strides[ilat]
-			row := g.Values[o : o+nlon]
-			vrow := valid[o : o+nlon]
-			for i, x := range srcLon {
-				v := raw[base+x]
-				if m.bad(v) {
-					row[i] = math.NaN()
-					continue
-				}
-				row[i] = v*m.scale + m.offset
-				vrow[i] = true
-				nvalid++
+	// transform masks, unpacks and reorders one row of the grid, taken at
+	// offset base of raw, into dst and its validity into vdst.
+	transform := func(dst []float64, vdst []bool, base int) {
+		for i, x := range srcLon {
+			v := raw[base+x]
+			if m.bad(v) {
+				dst[i] = math.NaN()
+				vdst[i] = false
+				continue
 			}
-			o += nlon
+			dst[i] = v*m.scale + m.offset
+			vdst[i] = true
+			nvalid++
+		}
+	}
+	rowBase := func(r int) int { return zIdx[r/len(latIdx)]*sz + latIdx[r%len(latIdx)]*strides[ilat] }
+	w := int(shape[ilon])
+	if strides[ilon] == 1 && strides[ilat] == w && (iz < 0 || sz == w*int(shape[ilat])) {
+		// The file's layout is already depth, latitude, longitude (up to
+		// dimensions of length 1): reorder raw in place. The row
+		// permutation is a product of reversals, so it pairs rows.
+		ta, tb := make([]float64, nlon), make([]float64, nlon)
+		for r := range nrow {
+			s := rowBase(r) / w
+			if s < r {
+				continue // done with its partner
+			}
+			transform(ta, valid[r*nlon:(r+1)*nlon], s*w)
+			if s != r {
+				transform(tb, valid[s*nlon:(s+1)*nlon], r*w)
+				copy(raw[s*w:], tb)
+			}
+			copy(raw[r*w:], ta)
+		}
+		if nlon < w { // a dropped repeated column: close the gaps
+			for r := range nrow {
+				copy(raw[r*nlon:(r+1)*nlon], raw[r*w:r*w+nlon])
+			}
+		}
+		g.Values = raw[: nrow*nlon : nrow*nlon]
+	} else {
+		g.Values = make([]float64, nrow*nlon)
+		for r := range nrow {
+			transform(g.Values[r*nlon:(r+1)*nlon], valid[r*nlon:(r+1)*nlon], rowBase(r))
 		}
 	}
 	if nvalid == 0 {

@@ -297,3 +297,27 @@ func TestReadNetCDFHeaderErrorsCarryFile(t *testing.T) {
 		t.Errorf("HDF5 error = %v", err)
 	}
 }
+
+func TestReadNetCDFTransposed(t *testing.T) {
+	// Dimensions in (lon, lat) order, latitude descending: the general
+	// reordering path. Values encode coordinates: v = lon + 1000*(lat+90).
+	data := ncCDL(t, "64-bit-offset", `netcdf x {
+dimensions: lon = 4 ; lat = 3 ;
+variables:
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ int v(lon, lat) ;
+data: lon = -90, 0, 90, 180 ; lat = 60, 0, -60 ;
+ v = 150270, 90270, 30270, 150000, 90000, 30000, 150090, 90090, 30090, 150180, 90180, 30180 ; }`)
+	g, err := ReadNetCDF("t.nc", data, ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for j, lat := range g.Lat {
+		for i, lon := range g.Lon {
+			if v, ok := g.At(0, j, i); !ok || v != ncF2(lon, lat, 0) {
+				t.Errorf("lat %g lon %g: %v, %v; want %v", lat, lon, v, ok, ncF2(lon, lat, 0))
+			}
+		}
+	}
+}

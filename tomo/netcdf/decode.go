@@ -522,6 +522,9 @@ func (f *File) chunks(v *Var, fn func(p []byte, first int64) error) error {
 	if f.IsRecord(v) {
 		nrec, stride = f.NumRecs, f.recSize
 	}
+	if v.vsize == 0 || nrec == 0 {
+		return nil // no values (a zero-length dimension)
+	}
 	per := v.vsize / int64(v.Type.Size())
 	var scratch []byte
 	for r := range nrec {

@@ -76,6 +76,13 @@ func Encode(w io.Writer, f *File, v Version) error {
 		}
 	}
 	single := len(l.recVars) == 1
+	recBytes := int64(0)
+	for _, i := range l.recVars {
+		recBytes += l.vsize[i]
+	}
+	if recBytes == 0 {
+		return bw.Flush() // records of zero size: nothing to write, however many
+	}
 	for r := range l.numRecs {
 		for _, i := range l.recVars {
 			n := l.count[i]

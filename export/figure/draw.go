@@ -92,7 +92,18 @@ func render(out io.Writer, svg bool, w, h int, fn func(c draw.Canvas) error) err
 	if err := fn(dc); err != nil {
 		return err
 	}
-	_, err := cv.WriteTo(out)
+	if !svg {
+		_, err := cv.WriteTo(out)
+		return err
+	}
+	// vgsvg labels embedded PNG images as JPEG; give them their true
+	// media type (RFC 2397 data URIs carry it) so that strict readers
+	// decode them.
+	var b bytes.Buffer
+	if _, err := cv.WriteTo(&b); err != nil {
+		return err
+	}
+	_, err := out.Write(bytes.ReplaceAll(b.Bytes(), []byte("data:image/jpg;base64,"), []byte("data:image/png;base64,")))
 	return err
 }
 

@@ -505,9 +505,14 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
 		bx = 40
 	}
 	top := l.barY
-	bar := image.NewRGBA(image.Rect(0, 0, 256, 1))
-	for i := range 256 {
-		bar.Set(i, 0, Diverging(2*(float64(i)+0.5)/256-1))
+	// Several rows, so that a viewer smoothing the scaled image does not
+	// blend the bar with the transparent surroundings.
+	bar := image.NewRGBA(image.Rect(0, 0, 512, 8))
+	for i := range 512 {
+		c := Diverging(2*(float64(i)+0.5)/512 - 1)
+		for y := range 8 {
+			bar.SetRGBA(i, y, c)
+		}
 	}
 	dc.DrawImage(vg.Rectangle{
 		Min: vg.Point{X: vg.Length(bx), Y: vg.Length(top - barH)},

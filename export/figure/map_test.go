@@ -213,6 +213,9 @@ func TestSVGWellFormed(t *testing.T) {
 	if count["svg"] != 1 || count["image"] < 2 || count["path"] < 10 || count["text"] < 10 {
 		t.Errorf("element counts %v", count)
 	}
+	if !strings.Contains(string(b), `xlink:href="data:image/png;base64,`) || strings.Contains(string(b), "image/jpg") {
+		t.Error("embedded raster not labelled image/png")
+	}
 	if !strings.Contains(string(b), "invented demo scenario") {
 		t.Error("title missing from the SVG")
 	}
@@ -259,6 +262,24 @@ func TestPlotErrors(t *testing.T) {
 		if err := f.WritePNG(io.Discard); err == nil {
 			t.Errorf("%s: no error", name)
 		}
+	}
+}
+
+// TestLogTicks checks the labels of the logarithmic axis.
+func TestLogTicks(t *testing.T) {
+	labels := func(lo, hi float64) (s []string) {
+		for _, tk := range (logTicks{}).Ticks(lo, hi) {
+			if tk.Label != "" {
+				s = append(s, tk.Label)
+			}
+		}
+		return s
+	}
+	if got := strings.Join(labels(0.5, 9), " "); got != "0.5 1 2 5" {
+		t.Errorf("labels on [0.5, 9]: %q", got)
+	}
+	if got := strings.Join(labels(0.03, 2000), " "); got != "0.1 1 10 100 1000" {
+		t.Errorf("labels on [0.03, 2000]: %q", got)
 	}
 }
 

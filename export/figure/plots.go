@@ -228,6 +228,35 @@ func (integerTicks) Ticks(min, max float64) []plot.Tick {
 	return t
 }
 
+// logTicks labels a logarithmic axis: at 1, 2 and 5 times powers of ten
+// when the range spans less than two decades, else at powers of ten, with
+// unlabelled minor ticks at the other integer multiples.
+type logTicks struct{}
+
+// Ticks returns the ticks for the range [min, max], min > 0.
+func (logTicks) Ticks(min, max float64) []plot.Tick {
+	if !(min > 0) || !(max >= min) {
+		return nil
+	}
+	dense := math.Log10(max/min) < 2
+	var t []plot.Tick
+	for e := math.Floor(math.Log10(min)); e <= math.Ceil(math.Log10(max)); e++ {
+		p := math.Pow(10, e)
+		for k := 1; k <= 9; k++ {
+			v := float64(k) * p
+			if v < min*(1-1e-9) || v > max*(1+1e-9) {
+				continue
+			}
+			tk := plot.Tick{Value: v}
+			if k == 1 || dense && (k == 2 || k == 5) {
+				tk.Label = formatValue(v)
+			}
+			t = append(t, tk)
+		}
+	}
+	return t
+}
+
 func (s *Spectrum) plot() (*plot.Plot, error) {
 	if len(s.Series) == 0 {
 		return nil, errors.New("figure: spectrum with no series")
@@ -238,7 +267,7 @@ func (s *Spectrum) plot() (*plot.Plot, error) {
 	}
 	p := newPlot(s.Title, "spherical-harmonic degree l", s.YLabel)
 	p.Y.Scale = plot.LogScale{}
-	p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
+	p.Y.Tick.Marker = logTicks{}
 	p.X.Tick.Marker = integerTicks{}
 	positive := func(x, y float64) bool { return finite(x, y) && y > 0 }
 	n := 0

@@ -10,8 +10,10 @@ import (
 	"html/template"
 	"image/png"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 )
@@ -236,6 +238,7 @@ func figureOf(f Figure) (figureView, error) {
 		if !strings.HasPrefix(head, "<?xml") && !strings.HasPrefix(head, "<svg") {
 			return fv, fmt.Errorf("data is not an SVG document")
 		}
+		fv.Width, fv.Height = svgSize(f.Data)
 	default:
 		return fv, fmt.Errorf("media type %q, want image/png or image/svg+xml", f.MIME)
 	}
@@ -243,6 +246,31 @@ func figureOf(f Figure) (figureView, error) {
 	// base64, so the URL cannot break out of its attribute.
 	fv.Src = template.URL("data:" + f.MIME + ";base64," + base64.StdEncoding.EncodeToString(f.Data))
 	return fv, nil
+}
+
+var (
+	svgRoot   = regexp.MustCompile(`<svg\s[^>]*>`)
+	svgWidth  = regexp.MustCompile(`\swidth="([0-9.]+)(pt|px)?"`)
+	svgHeight = regexp.MustCompile(`\sheight="([0-9.]+)(pt|px)?"`)
+)
+
+// svgSize returns the width and height given on the root element of an
+// SVG document in points or pixels, as whole numbers, or zeros. The
+// report shows one point as one CSS pixel, the scale at which the PNG
+// figures of package figure are drawn, so that a figure has the same size
+// in either format.
+func svgSize(data []byte) (w, h int) {
+	root := svgRoot.Find(data[:min(len(data), 4096)])
+	mw, mh := svgWidth.FindSubmatch(root), svgHeight.FindSubmatch(root)
+	if mw == nil || mh == nil {
+		return 0, 0
+	}
+	fw, err1 := strconv.ParseFloat(string(mw[1]), 64)
+	fh, err2 := strconv.ParseFloat(string(mh[1]), 64)
+	if err1 != nil || err2 != nil || fw <= 0 || fh <= 0 {
+		return 0, 0
+	}
+	return int(math.Round(fw)), int(math.Round(fh))
 }
 
 // humanSize formats a byte count.

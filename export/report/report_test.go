@@ -41,6 +41,10 @@ func demoReport(t testing.TB) *Report {
 	if err != nil {
 		t.Fatal(err)
 	}
+	mapSVG, err := figure.SVG(m)
+	if err != nil {
+		t.Fatal(err)
+	}
 	return &Report{
 		Title:    "Build report: demo scenario <q* = 1.2> & friends",
 		Summary:  []string{"An invented scenario for testing; no real tomography model."},
@@ -48,6 +52,7 @@ func demoReport(t testing.TB) *Report {
 		Figures: []Figure{
 			{Caption: "Heat flux at the CMB", MIME: "image/png", Data: mapPNG},
 			{Caption: "Degree power spectrum", MIME: "image/svg+xml", Data: specSVG},
+			{Caption: "Heat flux at the CMB, as SVG", MIME: "image/svg+xml", Data: mapSVG},
 		},
 		Parameters:  KeyValues("Run parameters", "parameter", "value", [2]string{"q*", "1.2"}, [2]string{"lmax", "12"}),
 		Conventions: KeyValues("Coefficient conventions", "property", "value", [2]string{"normalization", "orthonormal"}, [2]string{"phase", "no Condon-Shortley phase"}),
@@ -110,8 +115,8 @@ func TestStructure(t *testing.T) {
 	// Attribute values may hold character references (html/template
 	// writes + and = as &#43; and &#61;); unescape before decoding.
 	srcs := regexp.MustCompile(`src="data:(image/[a-z+]+);base64,([A-Za-z0-9+/=]+)"`).FindAllStringSubmatch(html.UnescapeString(s), -1)
-	if len(srcs) != 2 {
-		t.Fatalf("found %d data URIs, want 2", len(srcs))
+	if len(srcs) != len(r.Figures) {
+		t.Fatalf("found %d data URIs, want %d", len(srcs), len(r.Figures))
 	}
 	for i, m := range srcs {
 		data, err := base64.StdEncoding.DecodeString(m[2])
@@ -122,8 +127,8 @@ func TestStructure(t *testing.T) {
 			t.Errorf("figure %d: data URI does not carry the figure", i)
 		}
 	}
-	if !strings.Contains(s, `width="900" height="540"`) {
-		t.Error("PNG figure lacks its pixel size")
+	if strings.Count(s, `width="900" height="540"`) != 2 || !strings.Contains(s, `width="900" height="440"`) {
+		t.Error("figures lack their sizes (PNG pixels, SVG points)")
 	}
 	for _, f := range r.Files {
 		if !strings.Contains(s, f.SHA256) {

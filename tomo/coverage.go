@@ -124,25 +124,24 @@ func SafeDegree(l *Layer) DegreeLimit {
 	}
 	nlon := len(l.Lon)
 	valid := make([]bool, len(lats)*nlon)
-	nvalid := 0
 	for j := range l.Lat {
 		for i := 0; i < nlon; i++ {
 			ok := l.Valid == nil || l.Valid[j*nlon+i]
 			valid[(south+j)*nlon+i] = ok
-			if ok {
-				nvalid++
-			}
 		}
 	}
 	lonDeg := append([]float64(nil), l.Lon...)
 	pad := 0.0
+	holes, edges := gapCounts(valid, len(lats), nlon)
+	gapped := holes > 0
 	// Coarsen until the search is affordable.
-	for f := 2; float64(len(valid)-nvalid)*float64(nvalid) > maxGapWork && f <= 64; f *= 2 {
-		lats, lonDeg, valid, nvalid = coarsen(lats, lonDeg, valid, 2)
+	for f := 2; float64(holes)*float64(edges) > maxGapWork && f <= 64; f *= 2 {
+		lats, lonDeg, valid, _ = coarsen(lats, lonDeg, valid, 2)
 		pad = math.Hypot(dlat*float64(f), dlon*float64(f))
+		holes, edges = gapCounts(valid, len(lats), len(lonDeg))
 	}
 	gap := largestGap(lats, lonDeg, valid)
-	if gap > 0 {
+	if gapped {
 		gap += pad
 	}
 	lim.Gap = gap
@@ -157,6 +156,33 @@ func SafeDegree(l *Layer) DegreeLimit {
 		lim.Reason = fmt.Sprintf("the grid spacing of %g degrees limits the degree to 180/%g = %d", delta, delta, lim.Nyquist)
 	}
 	return lim
+}
+
+// gapCounts returns the number of points without data and the number of
+// valid points next to one (the only candidates for a nearest valid point).
+func gapCounts(valid []bool, nlat, nlon int) (holes, edges int) {
+	for j := 0; j < nlat; j++ {
+		for i := 0; i < nlon; i++ {
+			if !valid[j*nlon+i] {
+				holes++
+			} else if isEdge(valid, nlat, nlon, j, i) {
+				edges++
+			}
+		}
+	}
+	return holes, edges
+}
+
+// isEdge reports whether the point (j, i) has a neighbour without data
+// (longitude wraps around; rows beyond the poles do not exist).
+func isEdge(valid []bool, nlat, nlon, j, i int) bool {
+	for _, d := range [4][2]int{{0, 1}, {0, -1}, {1, 0}, {-1, 0}} {
+		jj, ii := j+d[0], (i+d[1]+nlon)%nlon
+		if jj >= 0 && jj < nlat && !valid[jj*nlon+ii] {
+			return true
+		}
+	}
+	return false
 }
 
 // coarsen merges f x f blocks of points; a block is valid when any of its
@@ -216,17 +242,7 @@ func largestGap(lat, lon []float64, valid []bool) float64 {
 				holes = append(holes, unit(j, i))
 				continue
 			}
-			border := false
-			for _, d := range [][2]int{{0, 1}, {0, -1}, {1, 0}, {-1, 0}} {
-				jj, ii := j+d[0], (i+d[1]+nlon)%nlon
-				if jj < 0 || jj >= nlat {
-					continue
-				}
-				if !valid[jj*nlon+ii] {
-					border = true
-				}
-			}
-			if border {
+			if isEdge(valid, nlat, nlon, j, i) {
 				edge = append(edge, unit(j, i))
 			}
 		}

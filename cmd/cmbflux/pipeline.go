@@ -298,7 +298,7 @@ func amplitude(sp *config.Spec, pt *pattern) (*field, []string) {
 		f.amp = q0 * sp.QStar / span
 	}
 	if span == 0 && sp.Quantity != "dvs" {
-		warns = append(warns, "the pattern is uniform up to lmax (no lateral variation in the input): the boundary condition is homogeneous")
+		warns = append(warns, "uniform pattern: the pattern is uniform up to lmax (no lateral variation in the input): the boundary condition is homogeneous")
 	}
 	sqrt4pi := math.Sqrt(4 * math.Pi) // degree-0 orthonormal coefficient of a unit mean
 	scaled := func(scale, mean float64) *sh.Coeffs {
@@ -387,28 +387,30 @@ func diagnose(sp *config.Spec, pt *pattern, f *field, s *Summary) {
 }
 
 // warnings returns what the user must know about the boundary condition.
+// Each starts with a short class ("negative heat flux: ...") by which a
+// sweep groups them.
 func warnings(sp *config.Spec, src *source, s *Summary) []string {
 	var w []string
 	if s.AreaNegative > 0 {
-		w = append(w, fmt.Sprintf("the heat flux is negative (into the core) over %.1f %% of the CMB (q_min = %s): q* = %.3g is too large for this pattern with this mean", 100*s.AreaNegative, fmtMW(s.QMin), s.QStar))
+		w = append(w, fmt.Sprintf("negative heat flux: the flux points into the core over %.1f %% of the CMB (q_min = %s); q* = %.3g is too large for this pattern and mean, lower it unless your simulation is meant to have this", 100*s.AreaNegative, fmtMW(s.QMin), s.QStar))
 	}
 	if s.AreaSubadiabatic != nil && *s.AreaSubadiabatic > 0 {
-		w = append(w, fmt.Sprintf("the heat flux is below the adiabatic flux over %.1f %% of the CMB: those regions are stably stratified at the top of the core", 100**s.AreaSubadiabatic))
+		w = append(w, fmt.Sprintf("sub-adiabatic heat flux: the flux is below the adiabatic flux over %.1f %% of the CMB; those regions are stably stratified at the top of the core", 100**s.AreaSubadiabatic))
 	}
 	if sp.LMax > src.safe.Lmax {
-		w = append(w, fmt.Sprintf("lmax %d is above degree %d, the most the input resolves (%s)", sp.LMax, src.safe.Lmax, src.safe.Reason))
+		w = append(w, fmt.Sprintf("lmax above the input's resolution: lmax %d is above degree %d, the most the input resolves (%s)", sp.LMax, src.safe.Lmax, src.safe.Reason))
 	}
 	if sp.Norm != "orthonormal" || sp.CondonShortley || sp.Form != "real" {
-		w = append(w, fmt.Sprintf("coefficients are written %s, %s form: check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
+		w = append(w, fmt.Sprintf("non-default convention: coefficients are written %s, %s form; check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
 	}
 	if sp.Quantity == "dtdr" {
-		w = append(w, fmt.Sprintf("dtdr is -q/k with k = %g W/m/K and is negative for heat leaving the core: check the sign and the side (mantle or core) your code expects", sp.Conductivity))
+		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k with k = %g W/m/K and is negative for heat leaving the core; check the sign and the side (mantle or core) your code expects", sp.Conductivity))
 	}
 	if !sp.HasQMean && sp.Quantity != "dvs" {
-		w = append(w, "no mean flux given: fluxes in summary.json are in units of the mean flux")
+		w = append(w, "no mean flux: fluxes in summary.json are in units of the mean flux")
 	}
 	for _, lw := range src.layer.Warnings {
-		w = append(w, src.name+": "+lw)
+		w = append(w, "input: "+src.name+": "+lw)
 	}
 	sort.Strings(w)
 	return w
@@ -459,7 +461,7 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	if err != nil {
 		return nil, err
 	}
-	s.Files = append(files, "summary.json", "manifest.yaml")
+	s.Files = append(append([]string(nil), files...), "summary.json", "manifest.yaml")
 	sort.Strings(s.Files)
 	js, err := marshalJSON(s)
 	if err != nil {
@@ -474,7 +476,7 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 			params[k] = v.Raw
 		}
 	}
-	man, err := buildManifest(st.Tmp, append(files, "summary.json"), params,
+	man, err := buildManifest(st.Tmp, append(append([]string(nil), files...), "summary.json"), params,
 		manifestInput{Name: src.name, SHA256: src.sha256, Format: src.format})
 	if err != nil {
 		return nil, err

@@ -214,7 +214,11 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 	}
 	// Warnings of the selected runs, read back from their summaries so that a
 	// resumed sweep reports the same as an uninterrupted one.
-	warn := map[string][]int{}
+	type class struct {
+		runs []int
+		msgs map[string]bool
+	}
+	warn := map[string]*class{}
 	for _, i := range sel {
 		if results[i].err != nil {
 			continue
@@ -224,11 +228,27 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 			return err
 		}
 		for _, w := range s.Warnings {
-			warn[w] = append(warn[w], i)
+			k, _, _ := strings.Cut(w, ":")
+			c := warn[k]
+			if c == nil {
+				c = &class{msgs: map[string]bool{}}
+				warn[k] = c
+			}
+			if len(c.runs) == 0 || c.runs[len(c.runs)-1] != i {
+				c.runs = append(c.runs, i)
+			}
+			c.msgs[w] = true
 		}
 	}
-	for _, w := range sortedKeys(warn) {
-		fmt.Fprintf(stderr, "cmbflux: warning: %s (%s)\n", w, runList(warn[w], len(pts)))
+	for _, k := range sortedKeys(warn) {
+		c := warn[k]
+		if len(c.msgs) == 1 {
+			for m := range c.msgs {
+				fmt.Fprintf(stderr, "cmbflux: warning: %s (%s)\n", m, runList(c.runs, len(pts)))
+			}
+			continue
+		}
+		fmt.Fprintf(stderr, "cmbflux: warning: %s in %s; see the warnings in each run's summary.json\n", k, runList(c.runs, len(pts)))
 	}
 	if firstErr != nil {
 		if len(failed) > 1 {
@@ -418,7 +438,7 @@ func writeSweepSummary(out string, sw *config.Sweep, pts []config.Point) (bool, 
 		cw := csv.NewWriter(w)
 		head := []string{"index", "run"}
 		for _, a := range sw.Axes {
-			head = append(head, a.Key)
+			head = append(head, "param_"+a.Key)
 		}
 		head = append(head, summaryColumns...)
 		if err := cw.Write(head); err != nil {

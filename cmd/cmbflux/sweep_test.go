@@ -1,0 +1,211 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io/fs"
+	"math/rand"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"cmbflux/cmd/cmbflux/internal/outdir"
+)
+
+const demoSweep = `base: {demo: true, qmean: 80, qad: 60}
+vary:
+  qstar: [0, 1, 2.3, 5]
+  lmax: [4, 8, 16]
+`
+
+func TestGoldenSweep(t *testing.T) {
+	setup := func(t *testing.T) { writeFile(t, "sweep.yaml", demoSweep) }
+	runGoldenCases(t, []goldenCase{
+		{name: "sweep-demo", args: []string{"sweep", "sweep.yaml", "--out", "runs"}, setup: setup},
+		{name: "sweep-list", args: []string{"sweep", "sweep.yaml", "--list"}, setup: setup},
+		{name: "sweep-only-bad", args: []string{"sweep", "sweep.yaml", "--out", "runs", "--only", "12"}, setup: setup, code: 2},
+	})
+}
+
+// tree returns every regular file below dir (slash paths) with its bytes.
+func tree(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	m := map[string][]byte{}
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.Type().IsRegular() {
+			rel, _ := filepath.Rel(dir, p)
+			b, err := os.ReadFile(p)
+			if err != nil {
+				return err
+			}
+			m[filepath.ToSlash(rel)] = b
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+func sameTree(t *testing.T, want, got map[string][]byte) {
+	t.Helper()
+	for name, b := range want {
+		g, ok := got[name]
+		if !ok {
+			t.Errorf("missing %s", name)
+		} else if !bytes.Equal(g, b) {
+			t.Errorf("%s differs", name)
+		}
+	}
+	for name := range got {
+		if _, ok := want[name]; !ok {
+			t.Errorf("extra file %s", name)
+		}
+	}
+}
+
+func TestSweepResumeAndOnly(t *testing.T) {
+	t.Chdir(t.TempDir())
+	writeFile(t, "sweep.yaml", demoSweep)
+	if _, e, code := cli([]string{"sweep", "sweep.yaml", "--out", "full", "--quiet"}, ""); code != 0 {
+		t.Fatalf("full sweep: %d %s", code, e)
+	}
+	want := tree(t, "full")
+	if len(want) != 12*3+3 { // coefficients.txt, summary.json, manifest.yaml per run; runs.tsv, sweep.yaml, summary.csv
+		t.Errorf("%d files in the sweep folder, want 39", len(want))
+	}
+	// The array-job way: every index on its own, in a scrambled order.
+	for _, i := range []int{5, 0, 11, 3, 7, 1, 9, 2, 10, 4, 8, 6} {
+		if _, e, code := cli([]string{"sweep", "sweep.yaml", "--out", "parts", "--only", fmt.Sprint(i), "--quiet"}, ""); code != 0 {
+			t.Fatalf("--only %d: %d %s", i, code, e)
+		}
+		if i != 6 {
+			if _, err := os.Stat("parts/summary.csv"); err == nil {
+				t.Fatalf("summary.csv written before every run was complete")
+			}
+		}
+	}
+	sameTree(t, want, tree(t, "parts"))
+
+	// A damaged run is detected by its manifest and rebuilt by --resume.
+	os.WriteFile("parts/0004_qstar=1_lmax=8/coefficients.txt", []byte("0 0 1 0\n"), 0o644)
+	out, e, code := cli([]string{"sweep", "sweep.yaml", "--out", "parts", "--resume"}, "")
+	if code != 0 {
+		t.Fatalf("resume: %d %s", code, e)
+	}
+	if !strings.Contains(out, "(1 built, 11 already complete)") {
+		t.Errorf("resume output %q", out)
+	}
+	sameTree(t, want, tree(t, "parts"))
+
+	// Another sweep's folder is refused.
+	writeFile(t, "other.yaml", "base: {demo: true, qmean: 80}\nvary: {qstar: [1, 2]}\n")
+	if _, e, code := cli([]string{"sweep", "other.yaml", "--out", "parts", "--resume"}, ""); code != 2 || !strings.Contains(e, "not empty") {
+		t.Errorf("other sweep into the folder: %d %q", code, e)
+	}
+}
+
+// TestSweepSurvivesSIGKILL builds the command, kills a sweep with SIGKILL at
+// random moments again and again, resumes it each time, and checks that the
+// final folder is byte for byte that of an uninterrupted sweep and that no
+// visible run folder is ever incomplete.
+func TestSweepSurvivesSIGKILL(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the command")
+	}
+	dir := t.TempDir()
+	bin := filepath.Join(dir, "cmbflux")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	sweep := filepath.Join(dir, "sweep.yaml")
+	os.WriteFile(sweep, []byte("base: {demo: true, qmean: 80, qad: 60, formats: [json, csv]}\nvary:\n  qstar: [0.5, 1, 1.5, 2, 2.5, 3]\n  lmax: [6, 12, 18]\n"), 0o644)
+	runBin := func(out string, extra ...string) *exec.Cmd {
+		cmd := exec.Command(bin, append([]string{"sweep", sweep, "--out", out, "--quiet", "--jobs", "2"}, extra...)...)
+		cmd.Dir = dir
+		return cmd
+	}
+	start := time.Now()
+	if out, err := runBin(filepath.Join(dir, "ref")).CombinedOutput(); err != nil {
+		t.Fatalf("uninterrupted sweep: %v\n%s", err, out)
+	}
+	full := time.Since(start)
+	want := tree(t, filepath.Join(dir, "ref"))
+
+	rng := rand.New(rand.NewSource(1))
+	target := filepath.Join(dir, "killed")
+	kills := 0
+	for attempt := 0; attempt < 25; attempt++ {
+		cmd := runBin(target, "--resume")
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		delay := time.Duration(rng.Int63n(int64(full)*2/3 + 1))
+		select {
+		case err := <-done:
+			if err != nil {
+				t.Fatalf("resumed sweep failed: %v", err)
+			}
+		case <-time.After(delay):
+			cmd.Process.Signal(syscall.SIGKILL)
+			<-done
+			kills++
+		}
+		// Whatever is visible must be complete.
+		ents, _ := os.ReadDir(target)
+		for _, e := range ents {
+			if e.IsDir() && !outdir.IsTemp(e.Name()) {
+				if err := verifyFolder(filepath.Join(target, e.Name())); err != nil {
+					t.Fatalf("after kill %d: visible run %s is incomplete: %v", kills, e.Name(), err)
+				}
+			}
+		}
+		if _, err := os.Stat(filepath.Join(target, "summary.csv")); err == nil {
+			break
+		}
+	}
+	if kills == 0 {
+		t.Log("no kill landed before the sweep finished")
+	}
+	if out, err := runBin(target, "--resume").CombinedOutput(); err != nil {
+		t.Fatalf("final resume: %v\n%s", err, out)
+	}
+	sameTree(t, want, tree(t, target))
+	t.Logf("%d kills; uninterrupted sweep %v", kills, full)
+}
+
+// BenchmarkSweep runs sweeps of the demo scenario at lmax 16 that vary q*;
+// the time per point is reported as ns/point.
+func BenchmarkSweep(b *testing.B) {
+	for _, n := range []int{10, 1000} {
+		b.Run(fmt.Sprintf("points=%d", n), func(b *testing.B) {
+			dir := b.TempDir()
+			var vals []string
+			for i := 0; i < n; i++ {
+				vals = append(vals, fmt.Sprintf("%.4f", 4*float64(i)/float64(n)))
+			}
+			sw := filepath.Join(dir, "sweep.yaml")
+			os.WriteFile(sw, []byte("base: {demo: true, qmean: 80, qad: 60, lmax: 16}\nvary:\n  qstar: ["+strings.Join(vals, ", ")+"]\n"), 0o644)
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				out := filepath.Join(dir, fmt.Sprint("out", i))
+				var o, e bytes.Buffer
+				if err := run(&o, &e, []string{"sweep", sw, "--out", out, "--quiet"}); err != nil {
+					b.Fatal(err, e.String())
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/point")
+		})
+	}
+}

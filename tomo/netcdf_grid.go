@@ -39,7 +39,7 @@ import (
 // latitude variable has a bounds attribute (CF-1.8 section 7.1) or the
 // coordinates sit at half steps from 0 E and from the South Pole, and
 // NodeRegistered otherwise. Coordinates must be strictly monotonic, evenly
-// spaced and free of fill values (CF-1.8 section 5).
+// spaced and free of fill values (CF-1.8 section 1.2, coordinate variable).
 //
 // Errors are *InputError wrapping ErrBadInput; header problems carry the
 // *netcdf.FormatError with its byte offset and field.
@@ -410,7 +410,7 @@ func (r *ncReader) read() (*Grid, error) {
 }
 
 // coord reads a coordinate variable, which must be numeric and free of
-// missing values (CF-1.8 section 5: coordinate variables must not have
+// missing values (CF-1.8 section 1.2: coordinate variables must not have
 // missing data).
 func (r *ncReader) coord(v *netcdf.Var) ([]float64, error) {
 	if v.Type == netcdf.Char {
@@ -426,7 +426,7 @@ func (r *ncReader) coord(v *netcdf.Var) ([]float64, error) {
 	}
 	for i, c := range x {
 		if m.bad(c) || math.IsInf(c, 0) {
-			return nil, r.fail(v.Name, "coordinate value %d (%g) is missing or not finite; CF-1.8 section 5 forbids missing coordinates", i, c)
+			return nil, r.fail(v.Name, "coordinate value %d (%g) is missing or not finite; CF-1.8 section 1.2 (coordinate variable) forbids missing values in coordinates", i, c)
 		}
 		x[i] = c*m.scale + m.offset
 	}

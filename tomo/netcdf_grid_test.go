@@ -12,6 +12,14 @@ import (
 	"cmbflux/tomo/netcdf"
 )
 
+// Sources of the checks in this file: Unidata's ncgen and ncdump (Debian
+// netcdf-bin) make the input files from committed CDL text; the CF
+// Conventions 1.8 document gives the rules cited beside each check by
+// section (section numbers from memory of its table of contents:
+// 1.2 terminology/coordinate variable, 2.5.1 missing data, 4.1 latitude,
+// 4.2 longitude, 4.3 vertical coordinate, 7.1 cell boundaries, 8.1 packed
+// data); PREM (Dziewonski & Anderson 1981) gives the 6371 km radius.
+
 // ncgenFile turns the committed CDL file testdata/cdl/<base> into a
 // netCDF file with Unidata's ncgen (Debian netcdf-bin), using the kind
 // named on the file's "// ncgen -k KIND" line, and returns its bytes. It
@@ -225,7 +233,7 @@ data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`, opts: ReadOptions{Var: "dvs
  double lat(lat) ; lat:units = "degrees_north" ;
  double a(lat, lon) ;
 data: lon = 0, 90, _, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
-			want: []string{"variable lon", "missing", "CF-1.8 section 5"}},
+			want: []string{"variable lon", "missing", "CF-1.8 section 1.2"}},
 		{name: "uneven longitude", cdl: head + `
  double lon(lon) ; lon:units = "degrees_east" ;
  double lat(lat) ; lat:units = "degrees_north" ;

@@ -23,6 +23,8 @@ type File struct {
 	buf  *bufio.Writer
 	err  error // first write error
 	done bool
+	// onCommit is called after a successful Commit (used by Stage).
+	onCommit func()
 }
 
 // Create starts writing the file at path atomically. The folder holding path
@@ -88,7 +90,13 @@ func (f *File) Commit() error {
 		os.Remove(f.tmp.Name())
 		return err
 	}
-	return syncDir(filepath.Dir(f.path))
+	if err := syncDir(filepath.Dir(f.path)); err != nil {
+		return err
+	}
+	if f.onCommit != nil {
+		f.onCommit()
+	}
+	return nil
 }
 
 // Abort discards the written bytes and leaves the destination untouched. It
@@ -142,6 +150,7 @@ func syncDir(dir string) error {
 type Stage struct {
 	dest, dir string
 	done      bool
+	files     map[string]bool // names committed through Create
 }
 
 // NewStage prepares to build the folder dest. Its parent folder must exist;
@@ -159,7 +168,7 @@ func NewStage(dest string) (*Stage, error) {
 	if err != nil {
 		return nil, fmt.Errorf("export: staging %s: %w", dest, err)
 	}
-	return &Stage{dest: dest, dir: dir}, nil
+	return &Stage{dest: dest, dir: dir, files: map[string]bool{}}, nil
 }
 
 // Dir returns the temporary folder being filled (for tools that need a path).
@@ -190,7 +199,31 @@ func (s *Stage) Create(name string) (*File, error) {
 	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 		return nil, fmt.Errorf("export: %w", err)
 	}
-	return Create(p)
+	f, err := Create(p)
+	if err != nil {
+		return nil, err
+	}
+	f.onCommit = func() { s.files[name] = true }
+	return f, nil
+}
+
+// Files returns the names of the files committed inside the stage so far,
+// sorted.
+func (s *Stage) Files() []string { return sortedKeys(s.files) }
+
+// WriteManifest lists every file committed inside the stage (except the
+// manifest itself) in m with its size and sha256, and writes m as
+// ManifestName inside the stage. Call it last, just before Commit.
+func (s *Stage) WriteManifest(m *Manifest) error {
+	for _, name := range s.Files() {
+		if name == ManifestName {
+			continue
+		}
+		if err := m.AddFile(s.dir, name); err != nil {
+			return err
+		}
+	}
+	return s.WriteFile(ManifestName, m.Encode)
 }
 
 // WriteFile writes name inside the stage with the bytes that write produces.

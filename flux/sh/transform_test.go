@@ -178,3 +178,46 @@ func TestTransformConcurrent(t *testing.T) {
 		}
 	}
 }
+
+// TestPoints compares synthesis at scattered points with the pointwise
+// evaluator (Coeffs.Evaluate, an independent implementation), and checks
+// that Adjoint is the transpose of Synthesis: <Y c, v> = <c, Y^T v>
+// (definition of the adjoint).
+func TestPoints(t *testing.T) {
+	const lmax, n, tol = 60, 300, 1e-12
+	r := rand.New(rand.NewPCG(5, 6))
+	colat, lon := make([]float64, n), make([]float64, n)
+	for i := range colat {
+		colat[i] = math.Acos(2*r.Float64() - 1)
+		lon[i] = 2*math.Pi*r.Float64() - math.Pi
+	}
+	colat[0], colat[1], colat[2] = 0, math.Pi, math.Pi/2
+	colat[3], colat[4] = 0.3, math.Pi-0.3 // a mirrored pair
+	c := trRandCoeffs(lmax, 9)
+	p := NewPoints(lmax, colat, lon)
+	f := p.Synthesis(nil, c)
+	var worst, scale float64
+	for i := range f {
+		want := c.Evaluate(colat[i], lon[i])
+		worst = math.Max(worst, math.Abs(f[i]-want))
+		scale = math.Max(scale, math.Abs(want))
+	}
+	if worst > tol*scale {
+		t.Errorf("points: max |fast - pointwise| %.3g (relative %.3g)", worst, worst/scale)
+	}
+	v := make([]float64, n)
+	for i := range v {
+		v[i] = r.NormFloat64()
+	}
+	a := p.Adjoint(nil, v)
+	var lhs, rhs float64
+	for i := range f {
+		lhs += f[i] * v[i]
+	}
+	for i := range c.C {
+		rhs += c.C[i]*a.C[i] + c.S[i]*a.S[i]
+	}
+	if math.Abs(lhs-rhs) > 1e-12*math.Abs(lhs)+1e-12 {
+		t.Errorf("<Yc, v> = %.15g but <c, Y^T v> = %.15g", lhs, rhs)
+	}
+}

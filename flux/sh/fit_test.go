@@ -1,0 +1,211 @@
+package sh
+
+import (
+	"errors"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// sampleGrid evaluates c on g with the pointwise evaluator (Evaluator,
+// the independent route of legendre.go), so the fit is not checked against
+// its own synthesis.
+func sampleGrid(c *Coeffs, g *Grid) []float64 {
+	f := make([]float64, g.Len())
+	ev := NewEvaluator(c)
+	for i, th := range g.Colat {
+		for j := range g.NLon {
+			f[i*g.NLon+j] = ev.Value(th, g.Lon(j))
+		}
+	}
+	return f
+}
+
+// TestFitBandLimited: a field of degree <= L sampled without noise lies in
+// the range of the design matrix, so any well-posed weighted least-squares
+// fit returns its coefficients up to rounding (normal equations,
+// common practice). The 2-degree cell-registered grid (90 x 180) is the
+// usual tomography layout.
+func TestFitBandLimited(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		lmax   int
+		g      *Grid
+		method string
+		tol    float64
+	}{
+		{"2deg-cell/lmax=20", 20, NewLonLat(90, 180, CellRegistered), "per-order QR", 1e-10},
+		{"2deg-cell/lmax=60", 60, NewLonLat(90, 180, CellRegistered), "per-order QR", 1e-10},
+		{"1deg-node/lmax=40", 40, NewLonLat(181, 360, NodeRegistered), "per-order QR", 1e-10},
+		{"partial-latitudes/lmax=6", 6, NewRings([]float64{0.6, 0.8, 1.0, 1.2, 1.4, 1.6, 1.8, 2.0, 2.2, 2.4}, 36, 0), "per-order QR", 1e-8},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := trRandCoeffs(tc.lmax, 21)
+			got, rep, err := FitGrid(tc.lmax, tc.g, sampleGrid(c, tc.g), nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rep.Method != tc.method {
+				t.Errorf("method %q, want %q", rep.Method, tc.method)
+			}
+			if d := trMaxRel(got, c); d > tc.tol {
+				t.Errorf("recovered coefficients off by %.3g (relative) > %.1g; condition %.3g", d, tc.tol, rep.Condition)
+			}
+			if rep.RMS > 1e-10 || rep.Used != tc.g.Len() {
+				t.Errorf("report: rms %.3g, used %d of %d", rep.RMS, rep.Used, tc.g.Len())
+			}
+		})
+	}
+}
+
+// TestFitMaskedCap removes a polar cap (and a few NaN cells) from the
+// 2-degree grid: at low degree the remaining 90 % of the sphere still
+// determines the coefficients (normal equations, common practice), now
+// through the conjugate-gradient path.
+func TestFitMaskedCap(t *testing.T) {
+	const lmax, tol = 12, 1e-8
+	g := NewLonLat(90, 180, CellRegistered)
+	c := trRandCoeffs(lmax, 22)
+	f := sampleGrid(c, g)
+	valid := make([]bool, len(f))
+	capped := 0
+	for i, th := range g.Colat {
+		for j := range g.NLon {
+			valid[i*g.NLon+j] = th > 30*math.Pi/180
+			if th <= 30*math.Pi/180 {
+				capped++
+			}
+		}
+	}
+	f[5000], f[7000] = math.NaN(), math.NaN()
+	got, rep, err := FitGrid(lmax, g, f, &FitOptions{Valid: valid})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Method != "conjugate gradients" || rep.NaN != 2 || rep.Used != len(f)-capped-2 || len(rep.Warnings) != 1 {
+		t.Errorf("report %+v", rep)
+	}
+	// The cap above 30 degrees colatitude is (1 - cos 30deg)/2 = 6.7 % of
+	// the sphere (spherical cap area, common practice).
+	if want := 1 - (1-math.Cos(math.Pi/6))/2; math.Abs(rep.Coverage-want) > 1e-3 {
+		t.Errorf("coverage %.4f, want %.4f", rep.Coverage, want)
+	}
+	if d := trMaxRel(got, c); d > tol {
+		t.Errorf("recovered coefficients off by %.3g > %.1g (condition %.3g, %d iterations)", d, tol, rep.Condition, rep.Iter)
+	}
+}
+
+// TestFitDamping: on a Gauss-Legendre grid the area weights are the exact
+// quadrature, Y^T W Y = I, so the damped normal equations give
+// c_lm / (1 + lambda l(l+1)) exactly (the documented behaviour, derived in
+// fit.go from the normal equations). Both solver paths are checked.
+func TestFitDamping(t *testing.T) {
+	const lmax, lambda, tol = 10, 0.01, 1e-10
+	g := NewGaussLegendre(lmax+1, 2*lmax+2)
+	c := trRandCoeffs(lmax, 23)
+	f := sampleGrid(c, g)
+	want := c.Clone()
+	for l := 0; l <= lmax; l++ {
+		for m := 0; m <= l; m++ {
+			want.C[Index(l, m)] /= 1 + lambda*float64(l*(l+1))
+			want.S[Index(l, m)] /= 1 + lambda*float64(l*(l+1))
+		}
+	}
+	// Weights that differ along a ring only by a constant factor force
+	// the conjugate-gradient path; weight 1 everywhere except one point set
+	// to 1 (but through the Weights slice) keeps the per-order path.
+	uneven := make([]float64, len(f))
+	for i := range uneven {
+		uneven[i] = 1
+	}
+	for _, tc := range []struct {
+		name string
+		opt  *FitOptions
+	}{
+		{"per-order", &FitOptions{Damping: lambda}},
+		{"cg", &FitOptions{Damping: lambda, Weights: uneven, Valid: make([]bool, len(f))}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			if tc.opt.Valid != nil {
+				for i := range tc.opt.Valid {
+					tc.opt.Valid[i] = true
+				}
+				// Equal weights but a jittered one to leave the per-order path.
+				tc.opt.Weights[3] = 1 + 1e-300
+				tc.opt.Weights[4] = 1 - 1e-16
+			}
+			got, rep, err := FitGrid(lmax, g, f, tc.opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if d := trMaxRel(got, want); d > tol {
+				t.Errorf("%s: damped coefficients off by %.3g > %.1g", rep.Method, d, tol)
+			}
+		})
+	}
+}
+
+// TestFitRefuses: the checks of fit.go. 180 longitudes resolve m < 90 only
+// (sampling theorem, common practice); a cap missing half the sphere cannot
+// carry degree 40 without damping.
+func TestFitRefuses(t *testing.T) {
+	g := NewLonLat(90, 180, CellRegistered)
+	f := make([]float64, g.Len())
+	_, _, err := FitGrid(100, g, f, nil)
+	var fe *FitError
+	if !errors.As(err, &fe) || !errors.Is(err, ErrIllPosed) {
+		t.Fatalf("lmax 100 on 180 longitudes: got %v, want a *FitError", err)
+	}
+	if fe.SafeLMax != 89 {
+		t.Errorf("safe degree %d, want 89", fe.SafeLMax)
+	}
+	// Southern hemisphere only, per-order path: rings missing.
+	f2 := make([]float64, g.Len())
+	valid := make([]bool, g.Len())
+	for i := 45 * 180; i < len(valid); i++ {
+		valid[i] = true
+	}
+	c := trRandCoeffs(40, 4)
+	copy(f2, sampleGrid(c, g))
+	_, _, err = FitGrid(40, g, f2, &FitOptions{Valid: valid})
+	if !errors.As(err, &fe) {
+		t.Fatalf("hemisphere at lmax 40: got %v, want a *FitError", err)
+	}
+	t.Logf("hemisphere: %v", err)
+	if fe.SafeLMax < 0 || fe.SafeLMax >= 40 {
+		t.Errorf("safe degree %d not in [0, 40)", fe.SafeLMax)
+	}
+	// Damping makes it well-posed.
+	if _, rep, err := FitGrid(40, g, f2, &FitOptions{Valid: valid, Damping: 1e-4}); err != nil {
+		t.Errorf("damped hemisphere fit refused: %v", err)
+	} else if rep.Coverage < 0.49 || rep.Coverage > 0.51 {
+		t.Errorf("hemisphere coverage %.3f", rep.Coverage)
+	}
+}
+
+// TestFitPoints recovers a degree-8 field from 2000 random points
+// (band-limited data, common practice as in TestFitBandLimited).
+func TestFitPoints(t *testing.T) {
+	const lmax, n, tol = 8, 2000, 1e-8
+	r := rand.New(rand.NewPCG(8, 9))
+	colat, lon, v := make([]float64, n), make([]float64, n), make([]float64, n)
+	c := trRandCoeffs(lmax, 24)
+	for i := range colat {
+		colat[i] = math.Acos(2*r.Float64() - 1)
+		lon[i] = 2 * math.Pi * r.Float64()
+		v[i] = c.Evaluate(colat[i], lon[i])
+	}
+	got, rep, err := FitPoints(lmax, colat, lon, v, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := trMaxRel(got, c); d > tol {
+		t.Errorf("recovered coefficients off by %.3g > %.1g", d, tol)
+	}
+	if rep.Coverage < 0.5 {
+		t.Errorf("coverage %.3f of random points over the sphere", rep.Coverage)
+	}
+	if _, _, err := FitPoints(50, colat, lon, v, nil); err == nil {
+		t.Errorf("2000 points accepted for 2601 coefficients")
+	}
+}

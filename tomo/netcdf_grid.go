@@ -276,6 +276,12 @@ func (r *ncReader) read() (*Grid, error) {
 		return nil, r.fail(val.Name, "dimensions (%s) do not include the depth variable's dimension %s", strings.Join(val.Dims, ", "), zDepthName)
 	}
 
+	for d, n := range shape {
+		if n == 0 {
+			return nil, r.fail(val.Name, "dimension %s has length 0: the variable holds no data", val.Dims[d])
+		}
+	}
+
 	// Coordinates.
 	lon, err := r.coord(lonV)
 	if err != nil {
@@ -312,6 +318,11 @@ func (r *ncReader) read() (*Grid, error) {
 	g.Lon = make([]float64, len(lonIdx))
 	for i, s := range lonIdx {
 		g.Lon[i] = math.Mod(math.Mod(lon[s], 360)+360, 360)
+	}
+	for i := 1; i < len(g.Lon); i++ {
+		if !(g.Lon[i] > g.Lon[i-1]) {
+			return nil, r.fail(lonV.Name, "longitudes do not stay distinct and ascending once brought into [0, 360) (%g after %g); the spacing is too small or the values too large", g.Lon[i], g.Lon[i-1])
+		}
 	}
 	if err := r.even(latV.Name, g.Lat); err != nil {
 		return nil, err
@@ -476,6 +487,9 @@ func (r *ncReader) lonOrder(name string, lon []float64) ([]int, error) {
 		if norm(lon[idx[i]]) < norm(lon[idx[k]]) {
 			k = i
 		}
+	}
+	if k != 0 && float64(len(idx))*step < 360-1e-6*step {
+		return nil, r.fail(name, "longitudes %g to %g cross 0 E on a regional grid; a grid needs ascending longitudes in [0, 360): give a global grid or one that does not cross 0 E", lo, hi)
 	}
 	out := append(slices.Clone(idx[k:]), idx[:k]...)
 	return out, nil

@@ -240,6 +240,21 @@ data: lon = 0, 90, _, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; 
  double a(lat, lon) ;
 data: lon = 0, 90, 100, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
 			want: []string{"variable lon", "not evenly spaced"}},
+		{name: "regional grid across 0 E", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: lon = -20, -10, 0, 10 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable lon", "cross 0 E on a regional grid"}},
+		{name: "empty record dimension", cdl: `netcdf x {
+dimensions: lon = 4 ; lat = 3 ; depth = UNLIMITED ;
+variables:
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double depth(depth) ; depth:units = "km" ;
+ double a(depth, lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
+			want: []string{"variable a", "dimension depth has length 0"}},
 		{name: "valid_range with valid_min", cdl: head + `
  double lon(lon) ; lon:units = "degrees_east" ;
  double lat(lat) ; lat:units = "degrees_north" ;

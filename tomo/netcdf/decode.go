@@ -34,8 +34,8 @@ func Decode(r io.ReaderAt, size int64) (*File, error) {
 	n := min(size, 64<<10)
 	for {
 		buf := make([]byte, n)
-		if _, err := r.ReadAt(buf, 0); err != nil && !(errors.Is(err, io.EOF) && int64(len(buf)) == n) {
-			return nil, &FormatError{Offset: 0, Kind: ErrTruncated, Msg: "reading header: " + err.Error()}
+		if got, err := r.ReadAt(buf, 0); int64(got) < n {
+			return nil, &FormatError{Offset: int64(got), Kind: ErrTruncated, Msg: fmt.Sprintf("reading header: %v (file size given as %d)", err, size)}
 		}
 		f, err := decodeHeader(buf, size)
 		if err == errNeedMore {
@@ -272,6 +272,14 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 		return nil, err
 	}
 	if string(magic[:3]) != "CDF" {
+		// HDF5 may also place its signature after a user block of 512,
+		// 1024, 2048, ... bytes (HDF5 File Format Specification, "Format
+		// Signature").
+		for off := 512; off+8 <= len(b) && off <= 1<<16; off *= 2 {
+			if string(b[off:off+8]) == hdf5Magic {
+				return nil, &FormatError{Offset: int64(off), Field: "magic", Kind: ErrHDF5}
+			}
+		}
 		return nil, &FormatError{Offset: 0, Field: "magic", Kind: ErrNotNetCDF, Msg: fmt.Sprintf("starts with % X, want \"CDF\" followed by 0x01, 0x02 or 0x05", magic)}
 	}
 	h.v = Version(magic[3])
@@ -536,8 +544,8 @@ func (f *File) chunks(v *Var, fn func(p []byte, first int64) error) error {
 			if scratch == nil {
 				scratch = make([]byte, v.vsize)
 			}
-			if _, err := f.r.ReadAt(scratch, off); err != nil && !(errors.Is(err, io.EOF) && off+v.vsize <= f.size) {
-				return &FormatError{Offset: off, Var: v.Name, Kind: ErrTruncated, Msg: "reading data: " + err.Error()}
+			if got, err := f.r.ReadAt(scratch, off); got < len(scratch) {
+				return &FormatError{Offset: off + int64(got), Var: v.Name, Kind: ErrTruncated, Msg: fmt.Sprintf("reading data: %v", err)}
 			}
 			p = scratch
 		}

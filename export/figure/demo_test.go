@@ -47,11 +47,13 @@ func circleRing(lon0, lat0, r float64) [][2]float64 {
 
 func demoMap() *Map {
 	return &Map{
-		Title:  "CMB heat flux, invented demo scenario, q* = 1.0",
-		Grid:   demoGrid(),
-		Center: 65,
-		Label:  "heat flux q",
-		Units:  "mW/m²",
+		Title:    "CMB heat flux, invented demo scenario, q* = 1.0",
+		Subtitle: "lmax 12, linear mapping, mean 65 mW/m²",
+		Levels:   []Level{{Value: 40, Label: "q_ad"}},
+		Grid:     demoGrid(),
+		Center:   65,
+		Label:    "heat flux q",
+		Units:    "mW/m²",
 		Outlines: []Outline{
 			{Rings: [][][2]float64{circleRing(15, -8, 24), circleRing(-165, -5, 27)}, Label: "slow province edge", Style: Solid},
 			{Rings: [][][2]float64{circleRing(15, -8, 12)}, Label: "q below adiabat", Style: Dashed},

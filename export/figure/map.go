@@ -39,6 +39,14 @@ type Outline struct {
 	Style OutlineStyle
 }
 
+// Level is a reference value marked on a map's colour bar.
+type Level struct {
+	// Value is the marked value, in the map's units.
+	Value float64
+	// Label names the value, such as "q_ad".
+	Label string
+}
+
 // Marker is a labelled point on a map.
 type Marker struct {
 	// Lon and Lat are the position in degrees.
@@ -56,6 +64,9 @@ type Marker struct {
 type Map struct {
 	// Title is written above the map.
 	Title string
+	// Subtitle is written under the title in smaller type, such as the
+	// parameters of the build.
+	Subtitle string
 	// Grid is the field on a regular longitude-latitude grid, sampled by
 	// bilinear interpolation.
 	Grid *Grid
@@ -79,6 +90,9 @@ type Map struct {
 	Label string
 	// Units are the units of the values, such as "mW/m²".
 	Units string
+	// Levels are reference values marked on the colour bar, such as the
+	// adiabatic heat flux or zero.
+	Levels []Level
 	// Outlines are drawn over the field, in order.
 	Outlines []Outline
 	// Markers are drawn over the field, after the extrema.
@@ -132,6 +146,9 @@ func (m *Map) layout(w, h int) (*mapLayout, error) {
 	aw, ah := float64(w)-2*side, float64(h)-top-bottom
 	if m.Title == "" {
 		ah += 18
+	}
+	if m.Subtitle != "" {
+		ah -= 16
 	}
 	if aw < 40 || ah < 20 {
 		return nil, fmt.Errorf("figure: map size %d x %d too small", w, h)
@@ -223,10 +240,12 @@ func (m *Map) write(out io.Writer, svg bool) error {
 	}
 	sc := Scale{Center: m.Center, HalfRange: half}
 	img := image.NewRGBA(image.Rect(0, 0, l.nx, l.ny))
+	noData := false
 	for i, v := range vals {
 		if math.IsInf(v, 1) {
 			continue // transparent
 		}
+		noData = noData || math.IsNaN(v)
 		c := sc.Color(v)
 		img.Pix[4*i], img.Pix[4*i+1], img.Pix[4*i+2], img.Pix[4*i+3] = c.R, c.G, c.B, c.A
 	}
@@ -245,11 +264,17 @@ func (m *Map) write(out io.Writer, svg bool) error {
 		for _, mk := range m.Markers {
 			m.drawMarker(dc, l, mk.Lon, mk.Lat, mk.Label, false, 0)
 		}
+		ty := l.titleY
 		if m.Title != "" {
 			dc.FillText(textStyle(17, true, inkText, draw.XCenter, draw.YTop),
-				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(l.titleY)}, m.Title)
+				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, m.Title)
+			ty -= 22
 		}
-		m.drawColourBar(dc, l, sc)
+		if m.Subtitle != "" {
+			dc.FillText(textStyle(12, false, inkMuted, draw.XCenter, draw.YTop),
+				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, m.Subtitle)
+		}
+		m.drawColourBar(dc, l, sc, noData)
 		return nil
 	})
 }
@@ -491,10 +516,10 @@ func (m *Map) drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label s
 	dc.FillText(sty, q, label)
 }
 
-func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
+func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale, noData bool) {
 	const barH = 13.0
 	barW := math.Min(480, l.width*0.55)
-	hasLegend := false
+	hasLegend := noData
 	for _, o := range m.Outlines {
 		if o.Label != "" {
 			hasLegend = true
@@ -527,6 +552,19 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
 		x := bx + (v-lo)/(hi-lo)*barW
 		dc.StrokeLine2(tick, vg.Length(x), vg.Length(top-barH), vg.Length(x), vg.Length(top-barH-4))
 		dc.FillText(ts, vg.Point{X: vg.Length(x), Y: vg.Length(top - barH - 6)}, formatValue(v))
+	}
+	// Reference levels: a line across the bar and a label above it.
+	for _, lv := range m.Levels {
+		if lv.Value < lo || lv.Value > hi || math.IsNaN(lv.Value) {
+			continue
+		}
+		x := vg.Length(bx + (lv.Value-lo)/(hi-lo)*barW)
+		dc.StrokeLine2(draw.LineStyle{Color: white, Width: 2.6}, x, vg.Length(top-barH), x, vg.Length(top+3))
+		dc.StrokeLine2(draw.LineStyle{Color: inkText, Width: 1.2}, x, vg.Length(top-barH), x, vg.Length(top+3))
+		if lv.Label != "" {
+			dc.FillText(textStyle(10, false, inkText, draw.XCenter, draw.YBottom),
+				vg.Point{X: x, Y: vg.Length(top + 4)}, lv.Label+" "+formatValue(lv.Value))
+		}
 	}
 	// The centre: a small notch above the bar.
 	cxp := bx + barW/2
@@ -565,5 +603,10 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale) {
 		dc.StrokeLines(ink, seg)
 		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, o.Label)
 		y -= 17
+	}
+	if noData {
+		dc.SetColor(NoDataColor)
+		dc.Fill(rectPath(vg.Length(x+8), vg.Length(y-6), vg.Length(x+22), vg.Length(y+6)))
+		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, "no data")
 	}
 }

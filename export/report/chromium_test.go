@@ -165,8 +165,4 @@ func TestChromiumLoadsReport(t *testing.T) {
 	if blue < 500 || orange < 50 {
 		t.Errorf("screenshot shows %d blue and %d orange samples: figures not visible", blue, orange)
 	}
-	if os.Getenv("CMBFLUX_KEEP_SCREENSHOT") != "" {
-		data, _ := os.ReadFile(shot)
-		os.WriteFile(os.Getenv("CMBFLUX_KEEP_SCREENSHOT"), data, 0o644)
-	}
 }

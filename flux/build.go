@@ -1,0 +1,221 @@
+package flux
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"cmbflux/flux/sh"
+)
+
+// Reference holds the mean flux and the optional adiabatic reference and
+// core conductivity of a boundary condition. Set QMean or HeatFlow.
+type Reference struct {
+	// QMean is the mean CMB heat flux in W/m^2. When 0, HeatFlow is used.
+	QMean float64
+	// HeatFlow is the total CMB heat flow in W (TW at the edge), turned
+	// into QMean = HeatFlow / CMBArea.
+	HeatFlow float64
+	// QAd is the adiabatic heat flux at the top of the core in W/m^2. When
+	// 0, AdiabaticHeatFlow is used; when both are 0 there is no adiabatic
+	// reference and sub-adiabatic diagnostics are left out.
+	QAd float64
+	// AdiabaticHeatFlow is the adiabatic heat flow in W, turned into
+	// QAd = AdiabaticHeatFlow / CMBArea.
+	AdiabaticHeatFlow float64
+	// KCore is the thermal conductivity of the outermost core in W/m/K,
+	// needed only for the CoreGradient quantity.
+	KCore float64
+}
+
+// ErrSetting is wrapped by errors about unusable settings.
+var ErrSetting = errors.New("flux: bad setting")
+
+// resolve returns q_mean and q_ad (W/m^2) and whether q_ad is set.
+func (r Reference) resolve() (qm, qad float64, hasAd bool, err error) {
+	switch {
+	case r.QMean != 0 && r.HeatFlow != 0:
+		return 0, 0, false, fmt.Errorf("%w: both the mean flux and the heat flow are set; give one", ErrSetting)
+	case r.QMean != 0:
+		qm = r.QMean
+	case r.HeatFlow != 0:
+		qm = FluxFromHeatFlow(r.HeatFlow)
+	default:
+		return 0, 0, false, fmt.Errorf("%w: no mean flux: set the mean CMB heat flux (mW/m^2) or the total CMB heat flow (TW, 5-15 TW after Lay, Hernlund & Buffett 2008)", ErrSetting)
+	}
+	if math.IsNaN(qm) || math.IsInf(qm, 0) || qm <= 0 {
+		return 0, 0, false, fmt.Errorf("%w: mean flux %g W/m^2: it must be positive (heat leaving the core); for a core heated from the mantle no q* is defined", ErrSetting, qm)
+	}
+	switch {
+	case r.QAd != 0 && r.AdiabaticHeatFlow != 0:
+		return 0, 0, false, fmt.Errorf("%w: both the adiabatic flux and the adiabatic heat flow are set; give one", ErrSetting)
+	case r.QAd != 0:
+		qad, hasAd = r.QAd, true
+	case r.AdiabaticHeatFlow != 0:
+		qad, hasAd = FluxFromHeatFlow(r.AdiabaticHeatFlow), true
+	}
+	if hasAd && (math.IsNaN(qad) || qad < 0) {
+		return 0, 0, false, fmt.Errorf("%w: adiabatic flux %g W/m^2 must be positive", ErrSetting, qad)
+	}
+	if r.KCore < 0 || math.IsNaN(r.KCore) {
+		return 0, 0, false, fmt.Errorf("%w: core conductivity %g W/m/K must be positive", ErrSetting, r.KCore)
+	}
+	return qm, qad, hasAd, nil
+}
+
+// Physical holds the constants of the physical mode, in which the flux
+// anomaly follows from a temperature anomaly across a conductive thermal
+// boundary layer:
+//
+//	dT = dlnVs / (dlnVs/dT),   dq = -(k / h) dT,
+//
+// with dlnVs the band-limited pattern. Check value: k = 10 W/m/K,
+// dT = 1000 K, h = 200 km give dq = 50 mW/m^2 in magnitude.
+type Physical struct {
+	// Conductivity k of the lowermost mantle in W/m/K (8.4 +- 1.2 after
+	// Manthilake et al. 2011; 5-12 after Manga & Jeanloz 1997).
+	Conductivity float64
+	// Thickness h of the thermal boundary layer in m (about 200 km after
+	// Manthilake et al. 2011).
+	Thickness float64
+	// DlnVsDT is the sensitivity dlnVs/dT in 1/K, negative (about -1e-5 to
+	// -4e-5 after Karato 1993).
+	DlnVsDT float64
+}
+
+func (ph Physical) check() error {
+	if !(ph.Conductivity > 0) {
+		return fmt.Errorf("%w: mantle conductivity %g W/m/K must be positive (typically 5-12)", ErrSetting, ph.Conductivity)
+	}
+	if !(ph.Thickness > 0) {
+		return fmt.Errorf("%w: boundary-layer thickness %g m must be positive (typically about 200 km)", ErrSetting, ph.Thickness)
+	}
+	if !(ph.DlnVsDT < 0) {
+		return fmt.Errorf("%w: dlnVs/dT = %g /K must be negative (velocity falls as temperature rises, about -1e-5 to -4e-5 /K); a positive value would flip the flux pattern", ErrSetting, ph.DlnVsDT)
+	}
+	return nil
+}
+
+// Result is one boundary condition: q = QMean (1 + Amplitude g) with g the
+// Pattern, and its diagnostics and warnings.
+type Result struct {
+	// Pattern is the shape the result was built from.
+	Pattern *Pattern
+	// QMean is the mean heat flux in W/m^2.
+	QMean float64
+	// Amplitude is a in q = QMean (1 + a g), dimensionless per unit of g.
+	Amplitude float64
+	// QAd is the adiabatic flux in W/m^2 when HasAdiabatic.
+	QAd          float64
+	HasAdiabatic bool
+	// KCore is the core conductivity in W/m/K (0 if not given).
+	KCore float64
+	// Diagnostics summarises the result at the edge (degrees, mW/m^2, TW).
+	Diagnostics Diagnostics
+	// Warnings lists settings that could waste a simulation; print them.
+	Warnings []string
+}
+
+// WithQStar builds the boundary condition whose heterogeneity ratio
+// q* = (q_max - q_min) / q_mean equals qstar, with q_max and q_min the
+// extrema of the continuous band-limited field (or of the grid of
+// MeasuredOn): a = q* / (g_max - g_min). The extrema scale with a, so no
+// search is repeated: a sweep over q* costs little per point.
+func (p *Pattern) WithQStar(qstar float64, ref Reference) (*Result, error) {
+	if math.IsNaN(qstar) || math.IsInf(qstar, 0) || qstar < 0 {
+		return nil, fmt.Errorf("%w: q* = %g: give a value of 0 or more (q* = (q_max - q_min)/q_mean)", ErrSetting, qstar)
+	}
+	qm, qad, hasAd, err := ref.resolve()
+	if err != nil {
+		return nil, err
+	}
+	a := qstar / (p.refMax - p.refMin)
+	r := p.result(a, qm, qad, hasAd, ref.KCore)
+	r.Diagnostics.Mode = "ratio"
+	return r, nil
+}
+
+// WithPhysical builds the boundary condition of the physical mode (see
+// Physical): q = q_mean + dq with dq = -(k/h) g / (dlnVs/dT), that is
+// a = -k / (h (dlnVs/dT) q_mean). The resulting q* is reported.
+func (p *Pattern) WithPhysical(ph Physical, ref Reference) (*Result, error) {
+	if err := ph.check(); err != nil {
+		return nil, err
+	}
+	qm, qad, hasAd, err := ref.resolve()
+	if err != nil {
+		return nil, err
+	}
+	a := -ph.Conductivity / (ph.Thickness * ph.DlnVsDT * qm)
+	r := p.result(a, qm, qad, hasAd, ref.KCore)
+	d := &r.Diagnostics
+	d.Mode = "physical"
+	d.Conductivity = ph.Conductivity
+	d.ThicknessKm = ph.Thickness / 1e3
+	d.DlnVsDT = ph.DlnVsDT
+	d.TemperatureMax = p.max.value / ph.DlnVsDT
+	d.TemperatureMin = p.min.value / ph.DlnVsDT
+	return r, nil
+}
+
+// Coeffs returns the coefficients (canonical, degree Pattern.LMax(), SI
+// units of q.Info()) of the quantity.
+func (r *Result) Coeffs(q Quantity) (*sh.Coeffs, error) {
+	scale, mean, err := r.affine(q)
+	if err != nil {
+		return nil, err
+	}
+	c := r.Pattern.g.Clone()
+	for k := range c.C {
+		c.C[k] *= scale
+		c.S[k] *= scale
+	}
+	c.C[0] = mean * math.Sqrt(4*math.Pi) // Y_00 = 1/sqrt(4 pi)
+	return c, nil
+}
+
+// affine returns s and m with quantity = m + s g.
+func (r *Result) affine(q Quantity) (s, m float64, err error) {
+	qa := r.QMean * r.Amplitude
+	switch q {
+	case HeatFlux:
+		return qa, r.QMean, nil
+	case FluxAnomaly:
+		return qa, 0, nil
+	case FluxRelative:
+		return r.Amplitude, 1, nil
+	case SuperAdiabatic:
+		if !r.HasAdiabatic {
+			return 0, 0, fmt.Errorf("%w: %s needs an adiabatic reference: set the adiabatic flux or heat flow", ErrSetting, q)
+		}
+		if r.QMean == r.QAd {
+			return 0, 0, fmt.Errorf("%w: %s is undefined when the mean flux equals the adiabatic flux", ErrSetting, q)
+		}
+		return qa / (r.QMean - r.QAd), 1, nil
+	case CoreGradient:
+		if !(r.KCore > 0) {
+			return 0, 0, fmt.Errorf("%w: %s needs the core conductivity k_core (W/m/K)", ErrSetting, q)
+		}
+		return -qa / r.KCore, -r.QMean / r.KCore, nil
+	}
+	return 0, 0, fmt.Errorf("%w: unknown quantity %d", ErrSetting, int(q))
+}
+
+// At returns the quantity q (SI units) at (lon, lat) in degrees.
+func (r *Result) At(q Quantity, lon, lat float64) (float64, error) {
+	s, m, err := r.affine(q)
+	if err != nil {
+		return 0, err
+	}
+	return m + s*r.Pattern.g.Evaluate((90-lat)/rad2deg, lon/rad2deg), nil
+}
+
+// OnGrid returns the quantity q (SI units) on the rings of grid g, laid out
+// as sh.Grid describes (ring by ring north to south).
+func (r *Result) OnGrid(q Quantity, g *sh.Grid) ([]float64, error) {
+	c, err := r.Coeffs(q)
+	if err != nil {
+		return nil, err
+	}
+	return sh.NewTransform(c.LMax, g).Synthesis(nil, c), nil
+}

@@ -1,0 +1,186 @@
+package flux
+
+import (
+	"fmt"
+	"math"
+)
+
+// Diagnostics summarises a boundary condition in the units of the edge:
+// heat flux in mW/m^2, heat flow in TW, positions as [lon, lat] in degrees
+// (lon in [-180, 180)), area fractions of the CMB in [0, 1]. Optional
+// entries are nil when their inputs were not given.
+type Diagnostics struct {
+	// Mode is "ratio" (amplitude from q*) or "physical" (from constants).
+	Mode string `json:"mode"`
+	// QStar is (q_max - q_min) / q_mean where the amplitude was set: on the
+	// continuous field, or on the grid named by QStarMeasuredOn.
+	QStar float64 `json:"qstar"`
+	// QStarMeasuredOn is "continuous field" or the name of the grid.
+	QStarMeasuredOn string `json:"qstar_measured_on"`
+	// QStarContinuous is q* of the continuous band-limited field exported.
+	QStarContinuous float64 `json:"qstar_continuous"`
+	// QStarSuperadiabatic is (q_max - q_min) / (q_mean - q_ad).
+	QStarSuperadiabatic *float64 `json:"qstar_superadiabatic,omitempty"`
+	// RMSOverMean is the root mean square of q - q_mean over q_mean.
+	RMSOverMean float64 `json:"rms_over_mean"`
+	// MaxDeviationOverMean is max |q - q_mean| / q_mean.
+	MaxDeviationOverMean float64 `json:"max_deviation_over_mean"`
+	// FluxUnits names the unit of the flux entries, "mW/m^2".
+	FluxUnits string `json:"flux_units"`
+	// QMean, QMax, QMin: mean and extrema of the continuous field, mW/m^2.
+	QMean float64 `json:"q_mean"`
+	QMax  float64 `json:"q_max"`
+	QMin  float64 `json:"q_min"`
+	// QMaxLonLat and QMinLonLat locate the extrema, degrees.
+	QMaxLonLat [2]float64 `json:"q_max_lonlat"`
+	QMinLonLat [2]float64 `json:"q_min_lonlat"`
+	// HeatFlowTW is the CMB heat flow q_mean * 4 pi rc^2 in TW.
+	HeatFlowTW float64 `json:"heat_flow_tw"`
+	// QAd is the adiabatic flux in mW/m^2, AdiabaticHeatFlowTW in TW.
+	QAd                 *float64 `json:"q_ad,omitempty"`
+	AdiabaticHeatFlowTW *float64 `json:"adiabatic_heat_flow_tw,omitempty"`
+	// AreaFractionNegative is the fraction of the CMB where q < 0 (the
+	// core gains heat); AreaFractionSubadiabatic where q < q_ad.
+	AreaFractionNegative     float64  `json:"area_fraction_negative"`
+	AreaFractionSubadiabatic *float64 `json:"area_fraction_subadiabatic,omitempty"`
+	// LMax is the truncation degree, LMaxInput the input's degree.
+	LMax      int    `json:"lmax"`
+	LMaxInput int    `json:"lmax_input"`
+	Taper     string `json:"taper"`
+	// Degree2PowerFraction is the fraction of the power of the anomaly in
+	// degree 2.
+	Degree2PowerFraction float64 `json:"degree2_power_fraction"`
+	// SlowestLonLat is where the input dlnVs (all its degrees) is lowest;
+	// MinToSlowestDeg the angle from there to the flux minimum.
+	SlowestLonLat   [2]float64 `json:"slowest_lonlat"`
+	MinToSlowestDeg float64    `json:"min_to_slowest_deg"`
+	// Amplitude is a in q = q_mean (1 + a g).
+	Amplitude float64 `json:"amplitude"`
+	// Physical mode only: mantle conductivity (W/m/K), boundary-layer
+	// thickness (km), dlnVs/dT (1/K) and the temperature anomaly range (K).
+	Conductivity   float64 `json:"k_mantle,omitempty"`
+	ThicknessKm    float64 `json:"tbl_thickness_km,omitempty"`
+	DlnVsDT        float64 `json:"dlnvs_dt,omitempty"`
+	TemperatureMax float64 `json:"dt_max_k,omitempty"`
+	TemperatureMin float64 `json:"dt_min_k,omitempty"`
+}
+
+// fractionBelow returns the fraction of the sphere where g < level.
+func (p *Pattern) fractionBelow(level float64) float64 {
+	switch {
+	case level <= p.min.value:
+		return 0
+	case level >= p.max.value:
+		return 1
+	}
+	return p.surf.FractionBelow(level)
+}
+
+// level returns the level of g where q = target, for q = qm (1 + a g), and
+// whether such a level exists (a != 0).
+func level(target, qm, a float64) (float64, bool) {
+	if a == 0 {
+		return 0, false
+	}
+	return (target/qm - 1) / a, true
+}
+
+// fractionWhereBelow returns the fraction of the CMB with q < target.
+func (p *Pattern) fractionWhereBelow(target, qm, a float64) float64 {
+	c, ok := level(target, qm, a)
+	if !ok {
+		if qm < target {
+			return 1
+		}
+		return 0
+	}
+	return p.fractionBelow(c)
+}
+
+func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result {
+	r := &Result{Pattern: p, QMean: qm, Amplitude: a, QAd: qad, HasAdiabatic: hasAd, KCore: kcore}
+	d := &r.Diagnostics
+	const mw = 1e3
+	qmax, qmin := qm*(1+a*p.max.value), qm*(1+a*p.min.value)
+	d.QStar = a * (p.refMax - p.refMin)
+	d.QStarContinuous = a * (p.max.value - p.min.value)
+	d.QStarMeasuredOn = "continuous field"
+	if p.refOn != "" {
+		d.QStarMeasuredOn = p.refOn
+	}
+	d.RMSOverMean = a * p.rms
+	d.MaxDeviationOverMean = a * math.Max(p.max.value, -p.min.value)
+	d.FluxUnits = "mW/m^2"
+	d.QMean, d.QMax, d.QMin = qm*mw, qmax*mw, qmin*mw
+	d.QMaxLonLat, d.QMinLonLat = p.max.at.lonLat(), p.min.at.lonLat()
+	d.HeatFlowTW = HeatFlowFromFlux(qm) / TW
+	d.AreaFractionNegative = p.fractionWhereBelow(0, qm, a)
+	d.LMax, d.LMaxInput, d.Taper = p.g.LMax, p.input.LMax, p.opts.TaperName
+	d.Degree2PowerFraction = p.deg2
+	d.SlowestLonLat = p.slow.lonLat()
+	d.MinToSlowestDeg = angle(p.min.at, p.slow) * rad2deg
+	d.Amplitude = a
+	r.Warnings = append(r.Warnings, p.warn...)
+	if hasAd {
+		v, tw := qad*mw, HeatFlowFromFlux(qad)/TW
+		d.QAd, d.AdiabaticHeatFlowTW = &v, &tw
+		f := p.fractionWhereBelow(qad, qm, a)
+		d.AreaFractionSubadiabatic = &f
+		if qm > qad {
+			s := (qmax - qmin) / (qm - qad)
+			d.QStarSuperadiabatic = &s
+		}
+		if qm <= qad {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("the mean flux %.4g mW/m^2 is not above the adiabatic flux %.4g mW/m^2: the top of the core is sub-adiabatic on average (thermally stratified); check the heat flow and the adiabatic reference", qm*mw, qad*mw))
+		} else if f > 0 {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("q < q_ad = %.4g mW/m^2 over %.2f%% of the CMB: sub-adiabatic, thermally stratified patches under the slow mantle (q_min = %.4g mW/m^2)", qad*mw, 100*f, qmin*mw))
+		}
+	}
+	if f := d.AreaFractionNegative; f > 0 {
+		crit := -(p.refMax - p.refMin) / p.min.value
+		r.Warnings = append(r.Warnings, fmt.Sprintf("q_min = %.4g mW/m^2 is negative: the core gains heat over %.2f%% of the CMB (q* = %.4g; this pattern turns negative above q* = %.4g); make sure the simulation code is meant to run with inward flux, or lower q*", qmin*mw, 100*f, d.QStar, crit))
+	}
+	if p.refOn != "" && d.QStarContinuous > d.QStar*(1+1e-9) {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("q* = %.4g is measured on grid %q; the continuous field exported reaches q* = %.4g (%.1f%% more), which is what a code evaluating the expansion sees", d.QStar, p.refOn, d.QStarContinuous, 100*(d.QStarContinuous/d.QStar-1)))
+	}
+	return r
+}
+
+// Outlines are the boundaries of the regions of a result where the flux is
+// negative and where it is sub-adiabatic, as rings of [lon, lat] in degrees
+// with the region on the left (exterior rings counter-clockwise seen from
+// outside, holes clockwise); see package contour.
+type Outlines struct {
+	Negative     [][][2]float64 `json:"negative"`
+	Subadiabatic [][][2]float64 `json:"subadiabatic,omitempty"`
+}
+
+// Outlines returns the outlines of the negative and sub-adiabatic regions
+// (Subadiabatic is nil without an adiabatic reference). They are the plain
+// polygons of the search grid, accurate to its spacing; the area fractions in
+// Diagnostics are computed more precisely.
+func (r *Result) Outlines() Outlines {
+	p := r.Pattern
+	var o Outlines
+	rings := func(target float64) [][][2]float64 {
+		c, ok := level(target, r.QMean, r.Amplitude)
+		if !ok || c <= p.min.value || c >= p.max.value {
+			return nil
+		}
+		rs := p.surf.Rings(c)
+		if p.rot != nil {
+			for _, ring := range rs {
+				for k, v := range ring {
+					pc, pl := p.rot.ApplyPoint((90-v[1])/rad2deg, v[0]/rad2deg)
+					ring[k] = point{pc, pl}.lonLat()
+				}
+			}
+		}
+		return rs
+	}
+	o.Negative = rings(0)
+	if r.HasAdiabatic {
+		o.Subadiabatic = rings(r.QAd)
+	}
+	return o
+}

@@ -1,0 +1,57 @@
+package flux
+
+import (
+	"fmt"
+
+	"cmbflux/flux/sh"
+)
+
+// Term is one real spherical harmonic of an idealised pattern:
+// Weight * Y_lm^c (or Y_lm^s when Sin), canonical (orthonormal, no
+// Condon-Shortley phase), so that Y_lm^c = N_lm P_l^m(cos colat) cos(m lon).
+type Term struct {
+	L, M   int
+	Sin    bool
+	Weight float64
+}
+
+// Harmonics returns the canonical coefficients of the sum of the terms.
+// Terms with the same (l, m, sin) add. It returns an error for degree 0,
+// m outside 0..l, or a sine term of order 0.
+func Harmonics(terms ...Term) (*sh.Coeffs, error) {
+	if len(terms) == 0 {
+		return nil, fmt.Errorf("%w: no harmonic terms; give at least one, e.g. degree 2, order 2", ErrSetting)
+	}
+	lmax := 0
+	for _, t := range terms {
+		if t.L < 1 || t.M < 0 || t.M > t.L {
+			return nil, fmt.Errorf("%w: harmonic (l, m) = (%d, %d): need 1 <= l and 0 <= m <= l", ErrSetting, t.L, t.M)
+		}
+		if t.Sin && t.M == 0 {
+			return nil, fmt.Errorf("%w: harmonic (%d, 0) has no sine part; use the cosine part", ErrSetting, t.L)
+		}
+		lmax = max(lmax, t.L)
+	}
+	c := sh.NewCoeffs(lmax, sh.Canonical)
+	for _, t := range terms {
+		k := sh.Index(t.L, t.M)
+		if t.Sin {
+			c.S[k] += t.Weight
+		} else {
+			c.C[k] += t.Weight
+		}
+	}
+	return c, nil
+}
+
+// Ideal returns the pattern of a sum of harmonics: the flux anomaly has the
+// sign of the sum (positive terms raise the flux), with the same amplitude
+// control as tomographic patterns. opt may be nil; its LMax defaults to the
+// highest degree of the terms.
+func Ideal(opt *PatternOptions, terms ...Term) (*Pattern, error) {
+	c, err := Harmonics(terms...)
+	if err != nil {
+		return nil, err
+	}
+	return NewPattern(c, opt)
+}

@@ -49,12 +49,18 @@ func arcDistance(p, a, b [3]float64) float64 {
 
 // DistanceToOutlines returns, for each point (lon, lat in degrees), the
 // angular distance in degrees to the nearest edge of any ring of the
-// outlines (rings of (lon, lat) degrees joined by great-circle arcs).
+// outlines (rings of (lon, lat) degrees joined by great-circle arcs; a ring
+// is closed from its last vertex back to its first, as in package
+// flux/contour, and a repeated closing vertex is harmless).
 func DistanceToOutlines(points [][2]float64, rings [][][2]float64) ([]float64, error) {
 	var segs [][2][3]float64
 	for _, r := range rings {
-		for i := 0; i+1 < len(r); i++ {
-			segs = append(segs, [2][3]float64{unitVec(r[i][0], r[i][1]), unitVec(r[i+1][0], r[i+1][1])})
+		for i := range r {
+			j := (i + 1) % len(r)
+			if r[j] == r[i] {
+				continue
+			}
+			segs = append(segs, [2][3]float64{unitVec(r[i][0], r[i][1]), unitVec(r[j][0], r[j][1])})
 		}
 	}
 	if len(segs) == 0 {

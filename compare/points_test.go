@@ -66,7 +66,7 @@ func TestProximityPValues(t *testing.T) {
 		r := rings[i%2]
 		on = append(on, r[(i*37)%(len(r)-1)])
 	}
-	res, err := TestProximity(on, rings, 500, 3)
+	res, err := TestProximity(on, rings, 200, 3)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -81,7 +81,7 @@ func TestProximityPValues(t *testing.T) {
 	for i := 0; i < 30; i++ {
 		rnd = append(rnd, [2]float64{360 * rng.Float64(), math.Asin(2*rng.Float64()-1) * 180 / math.Pi})
 	}
-	res2, _ := TestProximity(rnd, rings, 500, 4)
+	res2, _ := TestProximity(rnd, rings, 200, 4)
 	t.Logf("on outline p = %g; random p = %g", res.PValue, res2.PValue)
 	if res2.PValue < 0.05 {
 		t.Errorf("random points: p = %g, want not small", res2.PValue)

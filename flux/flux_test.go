@@ -17,7 +17,9 @@ const (
 
 func mWm2(x float64) float64 { return x * 1e-3 }
 
-func near(a, b, tol float64) bool { return math.Abs(a-b) <= tol*math.Max(1, math.Max(math.Abs(a), math.Abs(b))) }
+func near(a, b, tol float64) bool {
+	return math.Abs(a-b) <= tol*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
+}
 
 func TestZonalY10ClosedForms(t *testing.T) {
 	// g = Y_1^0, so q = q_mean (1 + (q*/2) cos(colat)): maximum q_mean(1 +

@@ -1,0 +1,85 @@
+package flux
+
+import (
+	"fmt"
+	"testing"
+)
+
+// benchRef is the reference used by the benchmarks: 10 TW over the CMB and
+// an adiabatic flow of 7 TW, so that both area diagnostics are exercised.
+var benchRef = Reference{HeatFlow: 10 * TW, AdiabaticHeatFlow: 7 * TW, KCore: 40}
+
+// BenchmarkBuild is one full build from dlnVs coefficients of degree 20:
+// conversion, truncation to lmax, taper, grid synthesis, extremum search,
+// amplitude for q* = 3 and all diagnostics (areas and outlines).
+func BenchmarkBuild(b *testing.B) {
+	for _, lmax := range []int{8, 16, 32} {
+		in := randomDlnVs(11, 2*lmax)
+		taper := make([]float64, lmax+1)
+		for l := range taper {
+			taper[l] = 1 - 0.5*float64(l)/float64(lmax)
+		}
+		b.Run(fmt.Sprintf("lmax=%d", lmax), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				p, err := NewPattern(in, &PatternOptions{LMax: lmax, Taper: taper})
+				if err != nil {
+					b.Fatal(err)
+				}
+				r, err := p.WithQStar(3, benchRef)
+				if err != nil {
+					b.Fatal(err)
+				}
+				_ = r.Outlines()
+			}
+		})
+	}
+}
+
+// BenchmarkQstarSweep builds many q* values, 0.5 to 6, from one Pattern
+// (made once outside the timer), with the scalar diagnostics of every point
+// (extrema, negative and sub-adiabatic area fractions). The outlines are
+// left to the caller (Result.Outlines); BenchmarkQstarSweepOutlines
+// includes them.
+func BenchmarkQstarSweep(b *testing.B) {
+	const lmax = 16
+	p, err := NewPattern(randomDlnVs(11, 2*lmax), &PatternOptions{LMax: lmax})
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, n := range []int{1000} {
+		b.Run(fmt.Sprintf("points=%d", n), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				for k := range n {
+					if _, err := p.WithQStar(0.5+5.5*float64(k)/float64(n-1), benchRef); err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkQstarSweepOutlines is BenchmarkQstarSweep with the outlines of
+// every point.
+func BenchmarkQstarSweepOutlines(b *testing.B) {
+	const lmax = 16
+	p, err := NewPattern(randomDlnVs(11, 2*lmax), &PatternOptions{LMax: lmax})
+	if err != nil {
+		b.Fatal(err)
+	}
+	const n = 1000
+	b.Run(fmt.Sprintf("points=%d", n), func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			for k := range n {
+				r, err := p.WithQStar(0.5+5.5*float64(k)/float64(n-1), benchRef)
+				if err != nil {
+					b.Fatal(err)
+				}
+				_ = r.Outlines()
+			}
+		}
+	})
+}

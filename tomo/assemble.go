@@ -307,6 +307,26 @@ func (b *builder) build() (*Grid, error) {
 	// Placement.
 	nlon, nlat, nd := len(g.Lon), len(g.Lat), len(depAx.centres)
 	total := nlon * nlat * nd
+	slot := func(r int) int {
+		k := 0
+		if b.hasDepth {
+			k = depAx.of[b.depID[r]]
+		}
+		return (k*nlat+latAx.of[b.latID[r]])*nlon + lonAx.of[b.lonID[r]]
+	}
+	if total > len(b.val) {
+		// Fewer records than points: the grid is incomplete. Find the first
+		// missing point without allocating the (possibly huge) grid.
+		filled := make(map[int]bool, len(b.val))
+		for r := range b.val {
+			filled[slot(r)] = true
+		}
+		s := 0
+		for filled[s] {
+			s++
+		}
+		return nil, b.incomplete(g, s, total-len(filled), total, nlat, nlon)
+	}
 	g.Values = make([]float64, total)
 	owner := make([]int32, total) // record that filled each point, -1 if none
 	for s := range owner {
@@ -314,18 +334,14 @@ func (b *builder) build() (*Grid, error) {
 	}
 	dups, seams, firstDup := 0, 0, -1
 	for r, v := range b.val {
-		k := 0
-		if b.hasDepth {
-			k = depAx.of[b.depID[r]]
-		}
-		s := (k*nlat+latAx.of[b.latID[r]])*nlon + lonAx.of[b.lonID[r]]
+		s := slot(r)
 		if owner[s] < 0 {
 			g.Values[s] = v
 			owner[s] = int32(r)
 			continue
 		}
 		r0 := int(owner[s])
-		seam := b.lonID[r0] != b.lonID[r]
+		seam := math.Abs(rawLon[b.lonID[r0]]-rawLon[b.lonID[r]]) > 180
 		old := g.Values[s]
 		if old == v || (math.IsNaN(old) && math.IsNaN(v)) {
 			if seam {
@@ -363,14 +379,7 @@ func (b *builder) build() (*Grid, error) {
 				missing++
 			}
 		}
-		k, j, i := s/(nlat*nlon), (s/nlon)%nlat, s%nlon
-		where := fmt.Sprintf("lon %g, lat %g", g.Lon[i], g.Lat[j])
-		if b.hasDepth {
-			where += fmt.Sprintf(", depth %g km", g.Depth[k])
-		}
-		return nil, inputErr(b.file, 0,
-			"the grid is incomplete: %d of %d points are missing, the first at %s; every lon-lat%s combination must appear once (write NaN where there is no data)",
-			missing, total, where, map[bool]string{true: "-depth", false: ""}[b.hasDepth])
+		return nil, b.incomplete(g, s, missing, total, nlat, nlon)
 	}
 
 	// Validity mask.
@@ -399,6 +408,21 @@ func (b *builder) build() (*Grid, error) {
 		}
 	}
 	return g, nil
+}
+
+// incomplete reports the missing point s of a grid with missing of total
+// points absent.
+func (b *builder) incomplete(g *Grid, s, missing, total, nlat, nlon int) error {
+	k, j, i := s/(nlat*nlon), (s/nlon)%nlat, s%nlon
+	where := fmt.Sprintf("lon %g, lat %g", g.Lon[i], g.Lat[j])
+	combo := "lon-lat"
+	if b.hasDepth {
+		where += fmt.Sprintf(", depth %g km", g.Depth[k])
+		combo = "lon-lat-depth"
+	}
+	return inputErr(b.file, 0,
+		"the grid is incomplete: %d of %d points are missing, the first at %s; every %s combination must appear once (write NaN where there is no data)",
+		missing, total, where, combo)
 }
 
 // depthText returns ", depth D km" (or ", radius R km") for record r, or "".

@@ -42,21 +42,22 @@ type PatternOptions struct {
 // for many amplitudes (WithQStar, WithPhysical) are cheap. A Pattern is
 // immutable and safe for concurrent use.
 type Pattern struct {
-	g      *sh.Coeffs // canonical, degree 0 zero
-	input  *sh.Coeffs // canonical input, full degree (for the slowest region)
-	opts   PatternOptions
-	nr     int // Gauss-Legendre rings of the search grid
-	max    extremum
-	min    extremum
-	slow   point // minimum of the input dlnVs
-	surf   *contour.Surface
-	rot    *sh.Rotation // nil, or the rotation applied to the base surface
-	rms    float64      // root mean square of g over the sphere
-	deg2   float64      // fraction of the power of g in degree 2
-	refMax float64      // extremes used for the amplitude (continuous or on a grid)
-	refMin float64
-	refOn  string // "" for the continuous field, else the grid's name
-	warn   []string
+	g       *sh.Coeffs // canonical, degree 0 zero
+	input   *sh.Coeffs // canonical input, full degree (for the slowest region)
+	opts    PatternOptions
+	nr      int // Gauss-Legendre rings of the search grid
+	max     extremum
+	min     extremum
+	slow    point // minimum of the input dlnVs
+	surf    *contour.Surface
+	rot     *sh.Rotation // nil, or the rotation applied to the base surface
+	rms     float64      // root mean square of g over the sphere
+	deg2    float64      // fraction of the power of g in degree 2
+	refMax  float64      // extremes used for the amplitude (continuous or on a grid)
+	refMin  float64
+	refOn   string // "" for the continuous field, else the grid's name
+	refGrid *SampleGrid
+	warn    []string
 }
 
 // ErrPattern is wrapped by errors about unusable pattern input.
@@ -214,6 +215,6 @@ func (p *Pattern) MeasuredOn(grid *SampleGrid) (*Pattern, error) {
 		return nil, fmt.Errorf("flux: the pattern is constant on grid %q: q* cannot be set there; use a finer grid or the continuous field", name)
 	}
 	q := *p
-	q.refMax, q.refMin, q.refOn = hi, lo, name
+	q.refMax, q.refMin, q.refOn, q.refGrid = hi, lo, name, grid
 	return &q, nil
 }

@@ -1,11 +1,13 @@
 package tomo
 
 import (
+	"bytes"
 	"errors"
 	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -340,6 +342,52 @@ data: lon = -90, 0, 90, 180 ; lat = 60, 0, -60 ;
 		for i, lon := range g.Lon {
 			if v, ok := g.At(0, j, i); !ok || v != ncF2(lon, lat, 0) {
 				t.Errorf("lat %g lon %g: %v, %v; want %v", lat, lon, v, ok, ncF2(lon, lat, 0))
+			}
+		}
+	}
+}
+
+// TestReadNetCDFWriterRoundTrip reads grids written by package netcdf's
+// Encode in every version: latitude north to south, longitude from -180,
+// depth descending in m; the values encode their coordinates (ncF3).
+func TestReadNetCDFWriterRoundTrip(t *testing.T) {
+	lon := []float64{-180, -90, 0, 90}
+	lat := []float64{60, 0, -60}
+	dep := []float64{2891000, 2791000, 2691000}
+	var v []float32
+	for _, d := range dep {
+		for _, la := range lat {
+			for _, lo := range lon {
+				v = append(v, float32(ncF3(lo, la, d/1000)))
+			}
+		}
+	}
+	f := &netcdf.File{}
+	f.AddDim("depth", 3).AddDim("lat", 3).AddDim("lon", 4)
+	f.AddVar("depth", netcdf.Double, []string{"depth"}, dep).SetAttr("units", "m").SetAttr("positive", "down")
+	f.AddVar("lat", netcdf.Double, []string{"lat"}, lat).SetAttr("standard_name", "latitude")
+	f.AddVar("lon", netcdf.Double, []string{"lon"}, lon).SetAttr("standard_name", "longitude")
+	f.AddVar("dvs", netcdf.Float, []string{"depth", "lat", "lon"}, v).SetAttr("units", "percent")
+	for _, ver := range []netcdf.Version{netcdf.CDF1, netcdf.CDF2, netcdf.CDF5} {
+		var buf bytes.Buffer
+		if err := netcdf.Encode(&buf, f, ver); err != nil {
+			t.Fatal(err)
+		}
+		g, err := ReadNetCDF("rt.nc", buf.Bytes(), ReadOptions{})
+		if err != nil {
+			t.Fatalf("%v: %v", ver, err)
+		}
+		if !slices.Equal(g.Lon, []float64{0, 90, 180, 270}) || !slices.Equal(g.Lat, []float64{-60, 0, 60}) ||
+			!slices.Equal(g.Depth, []float64{2691, 2791, 2891}) {
+			t.Fatalf("%v: Lon %v Lat %v Depth %v", ver, g.Lon, g.Lat, g.Depth)
+		}
+		for k, d := range g.Depth {
+			for j, la := range g.Lat {
+				for i, lo := range g.Lon {
+					if x, ok := g.At(k, j, i); !ok || x != ncF3(lo, la, d) {
+						t.Errorf("%v: depth %g lat %g lon %g: %v %v, want %v", ver, d, la, lo, x, ok, ncF3(lo, la, d))
+					}
+				}
 			}
 		}
 	}

@@ -14,6 +14,31 @@ import (
 // 2.5.1) and the global attributes of section 2.6.2. The numbers are an
 // invented scenario.
 func Example_cfGrid() {
+	f := cfGrid()
+
+	var buf bytes.Buffer // an os.File in real use
+	if err := netcdf.Encode(&buf, f, netcdf.CDF2); err != nil {
+		log.Fatal(err)
+	}
+
+	g, err := netcdf.DecodeBytes(buf.Bytes())
+	if err != nil {
+		log.Fatal(err)
+	}
+	v := g.Var("q")
+	vals, err := g.Float64s(v)
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(g.Version, g.Attr("Conventions").Text(), v.Dims, g.Shape(v))
+	fmt.Println(v.Attr("units").Text(), vals[1], vals[6] == netcdf.FillDouble)
+	// Output:
+	// CDF-2 CF-1.8 [depth lat lon] [1 3 4]
+	// mW m-2 70 true
+}
+
+// cfGrid builds the grid of Example_cfGrid (also in testdata/cdl/cf_grid.cdl).
+func cfGrid() *netcdf.File {
 	lat := []float64{-45, 0, 45}
 	lon := []float64{0, 90, 180, 270}
 	depth := []float64{2891}
@@ -39,24 +64,5 @@ func Example_cfGrid() {
 		SetAttr("units", "mW m-2").
 		SetAttr("long_name", "heat flux out of the core").
 		SetAttr("_FillValue", netcdf.FillDouble)
-
-	var buf bytes.Buffer // an os.File in real use
-	if err := netcdf.Encode(&buf, f, netcdf.CDF2); err != nil {
-		log.Fatal(err)
-	}
-
-	g, err := netcdf.DecodeBytes(buf.Bytes())
-	if err != nil {
-		log.Fatal(err)
-	}
-	v := g.Var("q")
-	vals, err := g.Float64s(v)
-	if err != nil {
-		log.Fatal(err)
-	}
-	fmt.Println(g.Version, g.Attr("Conventions").Text(), v.Dims, g.Shape(v))
-	fmt.Println(v.Attr("units").Text(), vals[1], vals[6] == netcdf.FillDouble)
-	// Output:
-	// CDF-2 CF-1.8 [depth lat lon] [1 3 4]
-	// mW m-2 70 true
+	return f
 }

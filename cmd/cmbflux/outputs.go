@@ -6,11 +6,13 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
 	"cmbflux/export"
 	"cmbflux/export/figure"
+	"cmbflux/flux/contour"
 	"cmbflux/flux/sh"
 )
 
@@ -85,15 +87,98 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 					err = st.WriteFile("spectrum."+format, b.Bytes())
 				}
 			}
-		default:
-			err = fmt.Errorf("output format %s is not available in this version of cmbflux", format)
+		case "nc":
+			var b bytes.Buffer
+			if err = export.WriteGridNetCDF(&b, outputGrid(sp, pt, f), m); err == nil {
+				names = append(names, "field.nc")
+				err = st.WriteFile("field.nc", b.Bytes())
+			}
+		case "geojson":
+			var b bytes.Buffer
+			if err = export.WriteOutlines(&b, outlines(sp, pt, f), m); err == nil {
+				names = append(names, "outlines.geojson")
+				err = st.WriteFile("outlines.geojson", b.Bytes())
+			}
+		case "html":
+			// written last, below, so that it lists every other file
 		}
 		if err != nil {
 			return nil, err
 		}
 	}
+	if sp.Has("html") {
+		sort.Strings(names)
+		html, err := buildReport(sp, s, f.out, f, st.Tmp, names)
+		if err != nil {
+			return nil, err
+		}
+		names = append(names, "report.html")
+		if err := st.WriteFile("report.html", html); err != nil {
+			return nil, err
+		}
+	}
 	sort.Strings(names)
 	return names, nil
+}
+
+// outputGrid samples the output quantity on the --grid grid.
+func outputGrid(sp *config.Spec, pt *pattern, f *field) *export.Grid {
+	g := pt.grid
+	vals := sh.NewTransform(f.out.LMax, g).Synthesis(nil, f.out)
+	eg := &export.Grid{Values: vals, Name: strings.ReplaceAll(sp.Quantity, "-", "_")}
+	switch g.Kind {
+	case sh.GaussLegendre:
+		eg.Kind = "gauss-legendre"
+	case sh.DriscollHealy:
+		eg.Kind = "equiangular"
+	default:
+		eg.Kind = "user"
+	}
+	for i := range g.Colat {
+		eg.Lat = append(eg.Lat, round6(90-g.Colat[i]*180/math.Pi))
+	}
+	for j := 0; j < g.NLon; j++ {
+		eg.Lon = append(eg.Lon, round6(g.Lon(j)*180/math.Pi))
+	}
+	return eg
+}
+
+// outlines returns the regions where the flux is negative, where it is
+// sub-adiabatic, and where dVs is below -1 % (the outline of the slow
+// provinces, a common-practice level, Burke & Torsvik 2004), drawn on a
+// 1-degree grid.
+func outlines(sp *config.Spec, pt *pattern, f *field) []export.Outline {
+	g := sh.NewLonLat(181, 360, sh.NodeRegistered)
+	dvs := sh.NewTransform(pt.dvs.LMax, g).Synthesis(nil, pt.dvs) // dlnVs fraction, mean kept
+	lat := make([]float64, 181)
+	for i := range lat {
+		lat[i] = 90 - float64(i)
+	}
+	mean := pt.dvs.C[0] / math.Sqrt(4*math.Pi)
+	below := func(name string, level float64, vals []float64, props map[string]any) export.Outline {
+		rings, err := contour.Below(contour.Field{Lon0: 0, NLon: 360, Lat: lat, Values: vals}, level)
+		if err != nil {
+			rings = nil
+		}
+		p := map[string]any{"region": name}
+		for k, v := range props {
+			p[k] = v
+		}
+		return export.Outline{Rings: rings, Props: p}
+	}
+	var out []export.Outline
+	if sp.Quantity != "dvs" {
+		q := make([]float64, len(dvs))
+		for i, v := range dvs {
+			q[i] = f.q0 + f.amp*(v-mean)
+		}
+		out = append(out, below("negative heat flux", 0, q, map[string]any{"level_mw_m2": 0}))
+		if sp.HasQAd {
+			out = append(out, below("sub-adiabatic heat flux", sp.QAd, q, map[string]any{"level_mw_m2": sp.QAd * 1e3}))
+		}
+	}
+	out = append(out, below("dVs below -1 %", -0.01, dvs, map[string]any{"level_percent": -1.0}))
+	return out
 }
 
 // specParams returns the resolved parameters of a build, as written into
@@ -135,6 +220,9 @@ func specParams(sp *config.Spec) map[string]string {
 	}
 	if sp.Conductivity != 0 {
 		p["conductivity"] = fmt.Sprintf("%g W/m/K", sp.Conductivity)
+	}
+	if sp.CoreConductivity != 0 {
+		p["core-conductivity"] = fmt.Sprintf("%g W/m/K", sp.CoreConductivity)
 	}
 	return p
 }

@@ -11,6 +11,7 @@ import (
 
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
+	"cmbflux/export"
 	"cmbflux/flux/sh"
 	"cmbflux/tomo"
 )
@@ -330,7 +331,7 @@ func amplitude(sp *config.Spec, pt *pattern) (*field, []string) {
 		f.out, f.units, f.what = scaled(f.amp*mw, (q0-sp.QAd)*mw), fluxUnits, "super-adiabatic heat flux (q - q_ad)"
 		f.sign = "positive = more heat out of the core than the adiabat carries"
 	case "dtdr":
-		f.out, f.units, f.what = scaled(-f.amp/sp.Conductivity, -q0/sp.Conductivity), "K/m", "radial temperature gradient dT/dr = -q/k"
+		f.out, f.units, f.what = scaled(-f.amp/sp.CoreConductivity, -q0/sp.CoreConductivity), "K/m", "radial temperature gradient on the core side dT/dr = -q/k_core"
 		f.sign = "negative where heat flows out of the core (dT/dr = -q/k, r outward)"
 	case "dvs":
 		f.out = pt.dvs.Clone()
@@ -404,7 +405,7 @@ func warnings(sp *config.Spec, src *source, s *Summary) []string {
 		w = append(w, fmt.Sprintf("non-default convention: coefficients are written %s, %s form; check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
 	}
 	if sp.Quantity == "dtdr" {
-		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k with k = %g W/m/K and is negative for heat leaving the core; check the sign and the side (mantle or core) your code expects", sp.Conductivity))
+		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k_core with k_core = %g W/m/K and is negative for heat leaving the core; check the sign and units your code expects", sp.CoreConductivity))
 	}
 	if !sp.HasQMean && sp.Quantity != "dvs" {
 		w = append(w, "no mean flux: fluxes in summary.json are in units of the mean flux")
@@ -477,7 +478,7 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 		}
 	}
 	man, err := buildManifest(st.Tmp, append(append([]string(nil), files...), "summary.json"), params,
-		manifestInput{Name: src.name, SHA256: src.sha256, Format: src.format})
+		export.ManifestInput{Name: src.name, SHA256: src.sha256, Format: src.format}, s)
 	if err != nil {
 		return nil, err
 	}

@@ -2,18 +2,10 @@ package main
 
 import (
 	"bytes"
-	"crypto/sha256"
-	"encoding/hex"
 	"encoding/json"
-	"fmt"
-	"io"
-	"os"
-	"path/filepath"
-	"sort"
 	"strconv"
-	"sync"
 
-	"gopkg.in/yaml.v3"
+	"cmbflux/export"
 )
 
 // version is written into every manifest.
@@ -38,26 +30,25 @@ type Summary struct {
 	QAd        *float64   `json:"q_ad"`
 	HeatFlowTW *float64   `json:"heat_flow_tw"`
 	// RMSRatio is the rms of the flux anomaly over the mean flux.
-	RMSRatio             float64  `json:"rms_ratio"`
-	AreaNegative         float64  `json:"area_fraction_negative"`
-	AreaSubadiabatic     *float64 `json:"area_fraction_subadiabatic"`
-	LMax                 int      `json:"lmax"`
-	LMaxResolved         int      `json:"lmax_resolved_by_input"`
-	Taper                string   `json:"taper"`
-	Rotate               float64  `json:"rotate_deg"`
-	Convention           string   `json:"convention"`
-	Normalization        string   `json:"normalization"`
-	CondonShortley       bool     `json:"condon_shortley"`
-	Form                 string   `json:"form"`
-	DiagnosticGrid       string   `json:"diagnostic_grid"`
-	Input                string   `json:"input"`
-	InputSHA256          string   `json:"input_sha256"`
-	Layer                string   `json:"layer"`
-	Mode                 string   `json:"mode"`
-	PhysicalDeltaTMaxK   *float64 `json:"physical_delta_t_max_k,omitempty"`
-	Warnings             []string `json:"warnings"`
-	Files                []string `json:"files"`
-	PatternCorrelationL1 *float64 `json:"-"`
+	RMSRatio           float64  `json:"rms_ratio"`
+	AreaNegative       float64  `json:"area_fraction_negative"`
+	AreaSubadiabatic   *float64 `json:"area_fraction_subadiabatic"`
+	LMax               int      `json:"lmax"`
+	LMaxResolved       int      `json:"lmax_resolved_by_input"`
+	Taper              string   `json:"taper"`
+	Rotate             float64  `json:"rotate_deg"`
+	Convention         string   `json:"convention"`
+	Normalization      string   `json:"normalization"`
+	CondonShortley     bool     `json:"condon_shortley"`
+	Form               string   `json:"form"`
+	DiagnosticGrid     string   `json:"diagnostic_grid"`
+	Input              string   `json:"input"`
+	InputSHA256        string   `json:"input_sha256"`
+	Layer              string   `json:"layer"`
+	Mode               string   `json:"mode"`
+	PhysicalDeltaTMaxK *float64 `json:"physical_delta_t_max_k,omitempty"`
+	Warnings           []string `json:"warnings"`
+	Files              []string `json:"files"`
 }
 
 // summaryColumns are the diagnostic columns of a sweep's summary.csv.
@@ -94,61 +85,22 @@ func marshalJSON(v any) ([]byte, error) {
 	return b.Bytes(), nil
 }
 
-// manifest is the content of manifest.yaml: what made the folder and the
-// sha256 of every file in it. It holds no timestamp, so a rebuilt folder is
-// byte-for-byte the same.
-type manifest struct {
-	Manifest   int               `yaml:"cmbflux_manifest"`
-	Tool       string            `yaml:"tool"`
-	Parameters map[string]string `yaml:"parameters"`
-	Input      manifestInput     `yaml:"input"`
-	Files      []manifestFile    `yaml:"files"`
-}
-
-type manifestInput struct {
-	Name   string `yaml:"name"`
-	SHA256 string `yaml:"sha256"`
-	Format string `yaml:"format"`
-}
-
-type manifestFile struct {
-	Name   string `yaml:"name"`
-	Bytes  int64  `yaml:"bytes"`
-	SHA256 string `yaml:"sha256"`
-}
-
-// hashFile returns the size and hex sha256 of a file.
-func hashFile(path string) (int64, string, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return 0, "", err
+// buildManifest lists the files of dir with their hashes, the parameters
+// and the input, in the format of export.Manifest. It holds no timestamp, so
+// a rebuilt folder is byte-for-byte the same.
+func buildManifest(dir string, names []string, params map[string]string, in export.ManifestInput, s *Summary) ([]byte, error) {
+	m := &export.Manifest{Version: version, Inputs: []export.ManifestInput{in}, Params: params,
+		Diagnostics: map[string]any{"qstar": s.QStar, "area_fraction_negative": s.AreaNegative, "lmax": s.LMax}}
+	if s.AreaSubadiabatic != nil {
+		m.Diagnostics["area_fraction_subadiabatic"] = *s.AreaSubadiabatic
 	}
-	defer f.Close()
-	h := sha256.New()
-	n, err := io.Copy(h, f)
-	if err != nil {
-		return 0, "", err
-	}
-	return n, hex.EncodeToString(h.Sum(nil)), nil
-}
-
-// buildManifest lists the files of dir (names sorted) with their hashes.
-func buildManifest(dir string, names []string, params map[string]string, in manifestInput) ([]byte, error) {
-	m := manifest{Manifest: 1, Tool: version, Parameters: params, Input: in}
-	sorted := append([]string(nil), names...)
-	sort.Strings(sorted)
-	for _, n := range sorted {
-		size, sum, err := hashFile(filepath.Join(dir, n))
-		if err != nil {
+	for _, n := range names {
+		if err := m.AddFile(dir, n); err != nil {
 			return nil, err
 		}
-		m.Files = append(m.Files, manifestFile{Name: n, Bytes: size, SHA256: sum})
 	}
 	var b bytes.Buffer
-	b.WriteString("# Written by " + version + ". Verify with: sha256sum of each file below.\n")
-	enc := yaml.NewEncoder(&b)
-	enc.SetIndent(2)
-	if err := enc.Encode(m); err != nil {
+	if err := m.Encode(&b); err != nil {
 		return nil, err
 	}
 	return b.Bytes(), nil
@@ -156,42 +108,6 @@ func buildManifest(dir string, names []string, params map[string]string, in mani
 
 // verifyFolder checks every file listed in dir/manifest.yaml.
 func verifyFolder(dir string) error {
-	data, err := os.ReadFile(filepath.Join(dir, "manifest.yaml"))
-	if err != nil {
-		return err
-	}
-	var m manifest
-	if err := yaml.Unmarshal(data, &m); err != nil {
-		return fmt.Errorf("%s: %v", filepath.Join(dir, "manifest.yaml"), err)
-	}
-	if m.Manifest != 1 || len(m.Files) == 0 {
-		return fmt.Errorf("%s: not a cmbflux manifest", filepath.Join(dir, "manifest.yaml"))
-	}
-	var wg sync.WaitGroup
-	errs := make([]error, len(m.Files))
-	for i, f := range m.Files {
-		if !filepathLocal(f.Name) {
-			return fmt.Errorf("%s: file name %q leaves the folder", filepath.Join(dir, "manifest.yaml"), f.Name)
-		}
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			size, sum, err := hashFile(filepath.Join(dir, f.Name))
-			switch {
-			case err != nil:
-				errs[i] = err
-			case size != f.Bytes || sum != f.SHA256:
-				errs[i] = fmt.Errorf("%s: differs from its manifest", filepath.Join(dir, f.Name))
-			}
-		}()
-	}
-	wg.Wait()
-	for _, e := range errs {
-		if e != nil {
-			return e
-		}
-	}
-	return nil
+	_, err := export.Verify(dir)
+	return err
 }
-
-func filepathLocal(name string) bool { return filepath.IsLocal(name) }

@@ -49,6 +49,9 @@ type Spec struct {
 	DlnVsDT      float64 // per K
 	Conductivity float64 // W/m/K; 0 when not given
 	Thickness    float64 // m
+	// CoreConductivity is the outermost core's conductivity in W/m/K for
+	// the dtdr quantity; 0 when not given.
+	CoreConductivity float64
 
 	Quantity       string
 	Norm           string
@@ -182,6 +185,12 @@ func Resolve(s Set) (*Spec, error) {
 		}
 		sp.Conductivity = k
 	}
+	if k, ok := f("core-conductivity"); ok {
+		if k <= 0 {
+			return nil, bad("core-conductivity", "%g W/m/K must be positive", k)
+		}
+		sp.CoreConductivity = k
+	}
 	if sp.Physical {
 		x, ok := f("dlnvs-dt")
 		if !ok {
@@ -200,7 +209,7 @@ func Resolve(s Set) (*Spec, error) {
 		}
 		sp.Thickness = h * 1e3
 	} else {
-		for _, n := range []string{"dlnvs-dt", "thickness"} {
+		for _, n := range []string{"dlnvs-dt", "thickness", "conductivity"} {
 			if has(n) {
 				return nil, bad(n, "only used with --physical")
 			}
@@ -227,8 +236,8 @@ func Resolve(s Set) (*Spec, error) {
 			return nil, &Error{Key: "qad", Err: errors.New("--quantity superadiabatic needs the mean flux (--qmean or --heatflow) and the adiabatic flux (--qad or --adiabatic-heatflow)")}
 		}
 	case "dtdr":
-		if !sp.HasQMean || sp.Conductivity == 0 {
-			return nil, &Error{Key: "conductivity", Err: errors.New("--quantity dtdr needs the mean flux (--qmean or --heatflow) and --conductivity K")}
+		if !sp.HasQMean || sp.CoreConductivity == 0 {
+			return nil, &Error{Key: "core-conductivity", Err: errors.New("--quantity dtdr needs the mean flux (--qmean or --heatflow) and --core-conductivity K")}
 		}
 	}
 	if sp.Physical && !sp.HasQMean && sp.Quantity != "dvs" {

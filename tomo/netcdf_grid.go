@@ -179,6 +179,14 @@ func (r *ncReader) read() (*Grid, error) {
 			latVars = append(latVars, v)
 		}
 	}
+	if len(lonVars) == 0 || len(latVars) == 0 {
+		for _, v := range f.Vars {
+			u := ncText(v, "units")
+			if len(v.Dims) > 1 && (slices.Contains(ncLonUnits, u) || slices.Contains(ncLatUnits, u)) {
+				return nil, r.fail(v.Name, "coordinate variable has %d dimensions (%s): a curvilinear grid; resample it to a regular longitude-latitude grid with one-dimensional coordinates", len(v.Dims), strings.Join(v.Dims, ", "))
+			}
+		}
+	}
 	if len(lonVars) == 0 {
 		return nil, r.fail("", "no longitude coordinate variable: none has units degrees_east (CF-1.8 section 4.2) or standard_name longitude; name it with the longitude-variable option (file has %s)", r.varList())
 	}

@@ -257,6 +257,12 @@ variables:
  double a(depth, lat, lon) ;
 data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
 			want: []string{"variable a", "dimension depth has length 0"}},
+		{name: "curvilinear coordinates", cdl: head + `
+ double lon(lat, lon) ; lon:units = "degrees_east" ;
+ double lat(lat, lon) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
+			want: []string{"variable lon", "curvilinear grid", "resample"}},
 		{name: "valid_range with valid_min", cdl: head + `
  double lon(lon) ; lon:units = "degrees_east" ;
  double lat(lat) ; lat:units = "degrees_north" ;

@@ -224,6 +224,7 @@ func (h *hdr) attrs(list string) ([]Attr, error) {
 		return nil, err
 	}
 	as := make([]Attr, 0, n)
+	seen := make(map[string]bool, n)
 	for range n {
 		name, err := h.name("attribute name")
 		if err != nil {
@@ -251,9 +252,10 @@ func (h *hdr) attrs(list string) ([]Attr, error) {
 		if err != nil {
 			return nil, err
 		}
-		if findAttr(as, name) != nil {
+		if seen[name] {
 			return nil, h.fail(toff, "attribute name", ErrCorrupt, "attribute %s defined twice", name)
 		}
+		seen[name] = true
 		as = append(as, Attr{Name: name, Type: t, Value: decodeTyped(t, p[:cnt*sz], int(cnt))})
 	}
 	return as, nil
@@ -332,6 +334,7 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 		return nil, err
 	}
 	f.Dims = make([]Dim, 0, nd)
+	dimSeen := make(map[string]bool, nd)
 	recDim := -1
 	for i := range nd {
 		name, err := h.name("dimension name")
@@ -343,9 +346,10 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 		if err != nil {
 			return nil, err
 		}
-		if f.Dim(name) != nil {
+		if dimSeen[name] {
 			return nil, h.fail(loff, "dimension name", ErrCorrupt, "dimension %s defined twice", name)
 		}
+		dimSeen[name] = true
 		if n == 0 {
 			if recDim >= 0 {
 				return nil, h.fail(loff, "dim_length of "+name, ErrCorrupt, "second record dimension (length 0); %s is already the record dimension", f.Dims[recDim].Name)
@@ -370,14 +374,17 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 		return nil, err
 	}
 	f.Vars = make([]*Var, 0, nv)
+	varSeen := make(map[string]bool, nv)
+	dimids := make([][]int64, 0, nv)
 	for range nv {
 		name, err := h.name("variable name")
 		if err != nil {
 			return nil, err
 		}
-		if f.Var(name) != nil {
+		if varSeen[name] {
 			return nil, h.fail(h.off, "variable name", ErrCorrupt, "variable %s defined twice", name)
 		}
+		varSeen[name] = true
 		h.vr = name
 		v := &Var{Name: name}
 		ndims, err := h.count("nelems (number of dimensions)", w)
@@ -385,6 +392,7 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 			return nil, err
 		}
 		v.Dims = make([]string, 0, ndims)
+		ids := make([]int64, 0, ndims)
 		for j := range ndims {
 			doff := h.off
 			id, err := h.nonNeg("dimid")
@@ -398,7 +406,9 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 				return nil, h.fail(doff, "dimid", ErrCorrupt, "record dimension %s is not the first dimension", f.Dims[id].Name)
 			}
 			v.Dims = append(v.Dims, f.Dims[id].Name)
+			ids = append(ids, id)
 		}
+		dimids = append(dimids, ids)
 		if v.Attrs, err = h.attrs("vatt_list"); err != nil {
 			return nil, err
 		}
@@ -438,10 +448,17 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 
 	// Layout: sizes from the dimensions, checked against the file size.
 	var recVars []*Var
-	for _, v := range f.Vars {
+	for i, v := range f.Vars {
 		h.vr = v.Name
-		isRec := f.IsRecord(v)
-		v.shape = f.Shape(v)
+		ids := dimids[i]
+		isRec := len(ids) > 0 && int(ids[0]) == recDim
+		v.shape = make([]int64, len(ids))
+		for j, id := range ids {
+			v.shape[j] = f.Dims[id].Len
+		}
+		if isRec {
+			v.shape[0] = f.NumRecs
+		}
 		n := uint64(v.Type.Size())
 		for j, d := range v.shape {
 			if j == 0 && isRec {

@@ -576,14 +576,16 @@ func (f *File) chunks(v *Var, fn func(p []byte, first int64) error) error {
 // Float64s returns all values of v converted to float64, in row-major
 // order (records first). Values are returned as stored: fill values,
 // scale_factor and add_offset are left to the caller. For a File built
-// in memory it converts v.Data, and missing Data reads as the default
-// fill value.
+// in memory it converts v.Data, and nil Data reads as the fill value that
+// Encode would write (the _FillValue attribute, else the type's default).
 func (f *File) Float64s(v *Var) ([]float64, error) {
 	n := f.Len(v)
 	if f.r == nil || v.Data != nil {
 		out := make([]float64, n)
 		if v.Data == nil {
-			fill := v.Type.DefaultFill()
+			one := make([]float64, 1)
+			decodeFloat64(one, fillBytes(v), v.Type)
+			fill := one[0]
 			for i := range out {
 				out[i] = fill
 			}

@@ -30,7 +30,9 @@ type FormatError struct {
 	Msg    string // what is wrong, and what to do if there is something to do
 }
 
-// Error implements the error interface: "variable V: offset N: field F: kind: msg".
+// Error implements the error interface:
+// "variable V: byte offset N: FIELD: kind: msg", leaving out the parts
+// that do not apply.
 func (e *FormatError) Error() string {
 	s := ""
 	if e.Var != "" {

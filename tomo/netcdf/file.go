@@ -175,12 +175,14 @@ func (f *File) AddDim(name string, n int64) *File {
 }
 
 // AddVar appends a variable of type t over the named dimensions with its
-// values in data (see Var for the Go types; nil leaves it to be filled
-// with the type's default fill value by Encode) and returns it so that
+// values in data (see Var for the Go types; nil has Encode write fill
+// values: the _FillValue attribute, else the type's default) and returns
+// it so that
 // attributes can be chained. A coordinate variable is a one-dimensional
-// variable named like its dimension (CF-1.8 section 1.2). AddVar panics if
-// a variable of that name exists or a dimension is undefined; sizes and
-// types are checked by Encode.
+// variable named like its dimension (CF-1.8 section 1.2). Encode only
+// reads data, so it need not be copied. AddVar panics if a variable of
+// that name exists or a dimension is undefined; sizes and types are
+// checked by Encode.
 func (f *File) AddVar(name string, t Type, dims []string, data any) *Var {
 	if f.Var(name) != nil {
 		panic("netcdf: AddVar: variable " + name + " already defined")

@@ -83,6 +83,7 @@ type Transform struct {
 	nlon int
 	rc   *recursion
 	rg   *ringSet
+	st   *startTable
 
 	pool sync.Pool // *workspace
 }
@@ -100,6 +101,7 @@ func NewTransform(lmax int, g *Grid) *Transform {
 	}
 	t := &Transform{lmax: lmax, grid: g, nlon: g.NLon, rc: newRecursion(lmax)}
 	t.rg = newRingSet(g.Colat)
+	t.st = newStartTable(t.rg, t.rc, lmax)
 	return t
 }
 
@@ -129,9 +131,8 @@ func (t *Transform) Synthesis(dst []float64, c *Coeffs) []float64 {
 	nk := t.nlon/2 + 1
 	spec := ws.spec
 	clear(spec)
-	lmax := min(t.lmax, c.LMax)
-	for m := 0; m <= lmax; m++ {
-		t.legendreSynth(ws, c, m, lmax)
+	for m := 0; m <= t.lmax; m++ {
+		t.legendreSynth(ws, c, m)
 		// Fold order m into the FFT bins (aliasing when nlon <= 2m).
 		sn, cs := math.Sincos(float64(m) * t.grid.Lon0)
 		rot := complex(cs, sn)
@@ -239,26 +240,22 @@ type workspace struct {
 type legWork struct {
 	q1, q2         []float64 // recursion state per ring pair
 	er, ei, or, oi []float64 // even/odd sums (synthesis) or inputs (analysis)
-	ia, ib         []float64 // recursion state at entry into the fast loop
-	sv             []float64 // sectoral mantissa per ring pair
+	sv             []float64 // sectoral mantissa per ring pair (Points)
 	se             []int     // sectoral exponent (powers of 2^600) per ring pair
-	inj            []int     // degree at which the pair joins the fast loop
-	order          []int     // pairs sorted by inj
+	st             orderStarts
 	cr, ci         []float64 // scaled coefficients or sums, per degree
 }
 
 func newLegWork(npair, lmax int) legWork {
-	f := make([]float64, 10*npair+2*(lmax+1))
+	f := make([]float64, 7*npair+2*(lmax+1))
 	w := legWork{
 		q1: f[0*npair : 1*npair], q2: f[1*npair : 2*npair],
 		er: f[2*npair : 3*npair], ei: f[3*npair : 4*npair],
 		or: f[4*npair : 5*npair], oi: f[5*npair : 6*npair],
 		sv: f[6*npair : 7*npair],
-		ia: f[7*npair : 8*npair], ib: f[8*npair : 9*npair],
-		cr: f[10*npair : 10*npair+lmax+1], ci: f[10*npair+lmax+1:],
+		cr: f[7*npair : 7*npair+lmax+1], ci: f[7*npair+lmax+1:],
 	}
-	in := make([]int, 3*npair)
-	w.se, w.inj, w.order = in[:npair], in[npair:2*npair], in[2*npair:]
+	w.se = make([]int, npair)
 	return w
 }
 
@@ -273,33 +270,28 @@ func (t *Transform) get() *workspace {
 	}
 }
 
-func (t *Transform) legendreSynth(ws *workspace, c *Coeffs, m, lmax int) {
+func (t *Transform) legendreSynth(ws *workspace, c *Coeffs, m int) {
 	lw := &ws.leg
-	if m == 0 {
-		t.rg.sectoralInit(lw)
-	} else {
-		t.rg.sectoralStep(lw, t.rc.sect[m])
+	n := t.lmax - m + 1
+	cr, ci := lw.cr[:n], lw.ci[:n]
+	clear(cr)
+	clear(ci)
+	if m <= c.LMax {
+		cf := t.rc.cfac[t.rc.off[m] : t.rc.off[m]+min(t.lmax, c.LMax)-m+1]
+		for j := range cf {
+			i := Index(m+j, m)
+			cr[j], ci[j] = c.C[i]*cf[j], c.S[i]*cf[j]
+		}
 	}
-	cf := t.rc.cfac[t.rc.off[m] : t.rc.off[m]+lmax-m+1]
-	cr, ci := lw.cr[:len(cf)], lw.ci[:len(cf)]
-	for j := range cf {
-		i := Index(m+j, m)
-		cr[j], ci[j] = c.C[i]*cf[j], c.S[i]*cf[j]
-	}
-	t.rg.legendre(lw, t.rc, m, lmax, false)
+	t.rg.legendre(lw, t.rc, m, t.lmax, false, t.st.order(m))
 }
 
 func (t *Transform) legendreAdj(ws *workspace, dst *Coeffs, m int) {
 	lw := &ws.leg
-	if m == 0 {
-		t.rg.sectoralInit(lw)
-	} else {
-		t.rg.sectoralStep(lw, t.rc.sect[m])
-	}
 	n := t.lmax - m + 1
 	clear(lw.cr[:n])
 	clear(lw.ci[:n])
-	t.rg.legendre(lw, t.rc, m, t.lmax, true)
+	t.rg.legendre(lw, t.rc, m, t.lmax, true, t.st.order(m))
 	cf := t.rc.cfac[t.rc.off[m] : t.rc.off[m]+n]
 	for j := range cf {
 		i := Index(m+j, m)

@@ -98,34 +98,138 @@ func newRingSet(colat []float64) *ringSet {
 	return r
 }
 
-// sectoralInit sets the start values to Pbar_00 = 1/sqrt(4 pi).
-func (r *ringSet) sectoralInit(w *legWork) {
-	for p := range r.north {
-		w.sv[p] = 1 / math.Sqrt(4*math.Pi)
-		w.se[p] = 0
+// orderStarts lists, for one order m, the ring pairs whose functions reach
+// a significant size (2^-200) at some degree <= lmax, sorted by the degree
+// inj (m + 4k, a group start of the fast loop) at which they join it, with
+// the recursion state (Q_{inj-1}, Q_{inj-2}) there (Q_{m-1} = 0 and
+// Q_{m-2} = Pbar_mm by convention, so that the recursion yields Q_m).
+type orderStarts struct {
+	pair   []int32
+	inj    []int32
+	q1, q2 []float64
+}
+
+// appendStarts appends the entry state of every pair for order m to st,
+// given the sectoral values sv * 2^(600 se) of order m.
+func (r *ringSet) appendStarts(st *orderStarts, rc *recursion, m, lmax int, sv []float64, se []int) {
+	al := rc.alpha[rc.off[m] : rc.off[m]+lmax-m+1]
+	n0 := len(st.pair)
+	for p := len(r.north) - 1; p >= 0; p-- {
+		v, e := sv[p], se[p]
+		if v == 0 {
+			continue
+		}
+		x := r.x[p]
+		// First pass: the first degree lk with |Pbar_lk m / c_lm| >= 2^-200.
+		lk := m
+		if e < 0 || v < startMin {
+			qa, qb, ee := v, 0.0, e
+			if ee == 0 {
+				qa *= scaleBig
+				ee = -1
+			}
+			for ee < 0 && lk < lmax {
+				lk++
+				qa, qb = al[lk-m]*x*qa+qb, qa
+				if math.Abs(qa) >= scaleHigh {
+					qa *= scaleSmall
+					qb *= scaleSmall
+					ee++
+				}
+			}
+			if ee < 0 {
+				continue
+			}
+		}
+		inj := m + 4*((lk-m)/4)
+		// Second pass: the state before degree inj, unscaled (the values
+		// are tiny but normal: at most three steps below 2^-200).
+		var q1, q2 float64
+		if inj == m {
+			q1, q2 = 0, math.Ldexp(v, 600*e)
+		} else {
+			qa, qb, ee := v, 0.0, e
+			for l := m + 1; l < inj; l++ {
+				qa, qb = al[l-m]*x*qa+qb, qa
+				if ee < 0 && math.Abs(qa) >= scaleHigh {
+					qa *= scaleSmall
+					qb *= scaleSmall
+					ee++
+				}
+			}
+			q1, q2 = math.Ldexp(qa, 600*ee), math.Ldexp(qb, 600*ee)
+		}
+		st.pair = append(st.pair, int32(p))
+		st.inj = append(st.inj, int32(inj))
+		st.q1 = append(st.q1, q1)
+		st.q2 = append(st.q2, q2)
+	}
+	// Sort this order's entries by inj (nearly sorted: insertion sort).
+	pr, in, a, b := st.pair[n0:], st.inj[n0:], st.q1[n0:], st.q2[n0:]
+	for i := 1; i < len(pr); i++ {
+		for j := i; j > 0 && in[j] < in[j-1]; j-- {
+			pr[j], pr[j-1] = pr[j-1], pr[j]
+			in[j], in[j-1] = in[j-1], in[j]
+			a[j], a[j-1] = a[j-1], a[j]
+			b[j], b[j-1] = b[j-1], b[j]
+		}
 	}
 }
 
-// sectoralStep advances the scaled start values from order m-1 to m:
+// startTable holds orderStarts for every order of a plan.
+type startTable struct {
+	off []int // entries of order m are [off[m], off[m+1])
+	all orderStarts
+}
+
+func newStartTable(r *ringSet, rc *recursion, lmax int) *startTable {
+	np := len(r.north)
+	sv, se := make([]float64, np), make([]int, np)
+	t := &startTable{off: make([]int, lmax+2)}
+	for m := 0; m <= lmax; m++ {
+		r.sectoral(sv, se, rc, m)
+		t.off[m] = len(t.all.pair)
+		r.appendStarts(&t.all, rc, m, lmax, sv, se)
+	}
+	t.off[lmax+1] = len(t.all.pair)
+	return t
+}
+
+func (t *startTable) order(m int) orderStarts {
+	a, b := t.off[m], t.off[m+1]
+	return orderStarts{t.all.pair[a:b], t.all.inj[a:b], t.all.q1[a:b], t.all.q2[a:b]}
+}
+
+// sectoral advances the scaled start values sv * 2^(600 se) to order m
+// (from order m-1; m = 0 initialises): Pbar_00 = 1/sqrt(4 pi),
 // Pbar_mm = sect[m] sin(theta) Pbar_{m-1,m-1} (Holmes & Featherstone 2002,
-// eq. 13), true value sv * 2^(600 se).
-func (r *ringSet) sectoralStep(w *legWork, sect float64) {
+// eq. 13).
+func (r *ringSet) sectoral(sv []float64, se []int, rc *recursion, m int) {
+	if m == 0 {
+		for p := range sv {
+			sv[p], se[p] = 1/math.Sqrt(4*math.Pi), 0
+		}
+		return
+	}
+	f := rc.sect[m]
 	for p, s := range r.s {
-		v := w.sv[p] * sect * s
+		v := sv[p] * f * s
 		if v < scaleLow && v != 0 {
 			v *= scaleBig
-			w.se[p]--
+			se[p]--
 		}
-		w.sv[p] = v
+		sv[p] = v
 	}
 }
 
-// legendre runs the degree recursion of order m over all ring pairs.
-// Synthesis (adj false): accumulates sum_l cr[l-m] Pbar_lm/c_lm (and ci)
-// into er, ei (l-m even) and or, oi (l-m odd) per pair.
-// Adjoint (adj true): accumulates sum_pairs Q_lm * (er, ei or or, oi by
-// parity) into cr[l-m], ci[l-m].
-func (r *ringSet) legendre(w *legWork, rc *recursion, m, lmax int, adj bool) {
+// legendre runs the degree recursion of order m over the ring pairs listed
+// in st. Synthesis (adj false): accumulates sum_l cr[l-m] Q_lm (and ci)
+// into er, ei (l-m even) and or, oi (l-m odd) per pair. Adjoint (adj true):
+// accumulates sum_pairs Q_lm * (er, ei or or, oi by parity) into cr[l-m],
+// ci[l-m]. The fast loop runs over the contiguous range of pairs
+// [k0, npair) that have joined (pole-most pairs join last); pairs inside
+// the range that have not joined yet carry zeros.
+func (r *ringSet) legendre(w *legWork, rc *recursion, m, lmax int, adj bool, st orderStarts) {
 	np := len(r.north)
 	al := rc.alpha[rc.off[m] : rc.off[m]+lmax-m+1]
 	cr, ci := w.cr[:lmax-m+1], w.ci[:lmax-m+1]
@@ -135,86 +239,27 @@ func (r *ringSet) legendre(w *legWork, rc *recursion, m, lmax int, adj bool) {
 		clear(w.or)
 		clear(w.oi)
 	}
-	clear(w.q1)
-	clear(w.q2)
-	ngroup := (lmax - m) / 4
-	tail := m + 1 + 4*ngroup
-	nact := 0
-	for p := np - 1; p >= 0; p-- {
-		v, e := w.sv[p], w.se[p]
-		if v == 0 {
-			continue
-		}
-		x := r.x[p]
-		l := m
-		qa, qb := v, 0.0
-		if e < 0 || v < startMin {
-			// Scaled phase: true value qa * 2^(600 e).
-			if e == 0 {
-				qa *= scaleBig
-				e = -1
-			}
-			for e < 0 && l < lmax {
-				l++
-				qa, qb = al[l-m]*x*qa+qb, qa
-				if math.Abs(qa) >= scaleHigh {
-					qa *= scaleSmall
-					qb *= scaleSmall
-					e++
-				}
-			}
-			if e < 0 {
-				continue // never reaches a significant size
-			}
-		}
-		// Scalar advance from l to the pair's entry into the fast loop.
-		inj := lmax + 1
-		if l < tail {
-			inj = min(m+1+4*((l-m+3)/4), tail)
-		}
-		for {
-			j := l - m
-			if adj {
-				if j&1 == 0 {
-					cr[j] += qa * w.er[p]
-					ci[j] += qa * w.ei[p]
-				} else {
-					cr[j] += qa * w.or[p]
-					ci[j] += qa * w.oi[p]
-				}
-			} else {
-				if j&1 == 0 {
-					w.er[p] += cr[j] * qa
-					w.ei[p] += ci[j] * qa
-				} else {
-					w.or[p] += cr[j] * qa
-					w.oi[p] += ci[j] * qa
-				}
-			}
-			if l+1 >= inj {
-				break
-			}
-			l++
-			qa, qb = al[l-m]*x*qa+qb, qa
-		}
-		if inj <= lmax {
-			w.inj[p] = inj
-			w.order[nact] = p
-			nact++
-			w.ia[p], w.ib[p] = qa, qb
-		}
+	if len(st.pair) == 0 {
+		return
 	}
-	// Pairs sorted by entry degree (nearly sorted already: insertion sort).
-	ord := w.order[:nact]
-	for i := 1; i < len(ord); i++ {
-		for j := i; j > 0 && w.inj[ord[j]] < w.inj[ord[j-1]]; j-- {
-			ord[j], ord[j-1] = ord[j-1], ord[j]
-		}
+	k0 := int(st.pair[0])
+	for _, p := range st.pair {
+		k0 = min(k0, int(p))
 	}
-	k0, ptr := np, 0
+	clear(w.q1[k0:])
+	clear(w.q2[k0:])
+	ngroup := (lmax - m + 1) / 4
+	tail := m + 4*ngroup
+	k0 = np
+	ptr := 0
 	for g := range ngroup {
-		l0 := m + 1 + 4*g
-		k0, ptr = w.join(ord, ptr, k0, l0)
+		l0 := m + 4*g
+		for ptr < len(st.pair) && int(st.inj[ptr]) == l0 {
+			p := int(st.pair[ptr])
+			w.q1[p], w.q2[p] = st.q1[ptr], st.q2[ptr]
+			k0 = min(k0, p)
+			ptr++
+		}
 		if k0 == np {
 			continue
 		}
@@ -237,7 +282,12 @@ func (r *ringSet) legendre(w *legWork, rc *recursion, m, lmax int, adj bool) {
 				a[0], a[1], a[2], a[3], c[0], c[1], c[2], c[3], d[0], d[1], d[2], d[3])
 		}
 	}
-	k0, _ = w.join(ord, ptr, k0, tail)
+	for ptr < len(st.pair) && int(st.inj[ptr]) == tail {
+		p := int(st.pair[ptr])
+		w.q1[p], w.q2[p] = st.q1[ptr], st.q2[ptr]
+		k0 = min(k0, p)
+		ptr++
+	}
 	if k0 == np {
 		return
 	}
@@ -278,20 +328,8 @@ func (r *ringSet) legendre(w *legWork, rc *recursion, m, lmax int, adj bool) {
 	}
 }
 
-// join copies the start state of the pairs entering at degree l0 into the
-// fast-loop state and returns the new lowest active pair and list position.
-func (w *legWork) join(ord []int, ptr, k0, l0 int) (int, int) {
-	for ptr < len(ord) && w.inj[ord[ptr]] == l0 {
-		p := ord[ptr]
-		w.q1[p], w.q2[p] = w.ia[p], w.ib[p]
-		k0 = min(k0, p)
-		ptr++
-	}
-	return k0, ptr
-}
-
 // synthGroup advances the recursion of every pair by the four degrees
-// l0..l0+3 (l0-m odd) and accumulates the synthesis sums.
+// l0..l0+3 (l0-m even) and accumulates the synthesis sums.
 func synthGroup(xs, q1, q2, er, ei, or, oi []float64, a0, a1, a2, a3, c0, c1, c2, c3, d0, d1, d2, d3 float64) {
 	n := len(xs)
 	q1, q2 = q1[:n], q2[:n]
@@ -302,16 +340,16 @@ func synthGroup(xs, q1, q2, er, ei, or, oi []float64, a0, a1, a2, a3, c0, c1, c2
 		t1 := a1*x*t0 + p1
 		t2 := a2*x*t1 + t0
 		t3 := a3*x*t2 + t1
-		or[k] += c0*t0 + c2*t2
-		oi[k] += d0*t0 + d2*t2
-		er[k] += c1*t1 + c3*t3
-		ei[k] += d1*t1 + d3*t3
+		er[k] += c0*t0 + c2*t2
+		ei[k] += d0*t0 + d2*t2
+		or[k] += c1*t1 + c3*t3
+		oi[k] += d1*t1 + d3*t3
 		q1[k], q2[k] = t3, t2
 	}
 }
 
 // adjGroup advances the recursion of every pair by the four degrees
-// l0..l0+3 (l0-m odd) and returns the analysis sums (re, im) per degree.
+// l0..l0+3 (l0-m even) and returns the analysis sums (re, im) per degree.
 func adjGroup(xs, q1, q2, er, ei, or, oi []float64, a0, a1, a2, a3 float64) (s [8]float64) {
 	n := len(xs)
 	q1, q2 = q1[:n], q2[:n]
@@ -323,15 +361,15 @@ func adjGroup(xs, q1, q2, er, ei, or, oi []float64, a0, a1, a2, a3 float64) (s [
 		t1 := a1*x*t0 + p1
 		t2 := a2*x*t1 + t0
 		t3 := a3*x*t2 + t1
-		ur, ui, vr, vi := or[k], oi[k], er[k], ei[k]
-		s0 += t0 * ur
-		s1 += t0 * ui
-		s2 += t1 * vr
-		s3 += t1 * vi
-		s4 += t2 * ur
-		s5 += t2 * ui
-		s6 += t3 * vr
-		s7 += t3 * vi
+		vr, vi, ur, ui := er[k], ei[k], or[k], oi[k]
+		s0 += t0 * vr
+		s1 += t0 * vi
+		s2 += t1 * ur
+		s3 += t1 * ui
+		s4 += t2 * vr
+		s5 += t2 * vi
+		s6 += t3 * ur
+		s7 += t3 * ui
 		q1[k], q2[k] = t3, t2
 	}
 	return [8]float64{s0, s1, s2, s3, s4, s5, s6, s7}

@@ -135,17 +135,13 @@ func (p *Points) Synthesis(dst []float64, c *Coeffs) []float64 {
 	for m := 0; m <= lmax; m++ {
 		p.trig(w, m)
 		lw := &w.leg
-		if m == 0 {
-			p.rg.sectoralInit(lw)
-		} else {
-			p.rg.sectoralStep(lw, p.rc.sect[m])
-		}
+		p.rg.sectoral(lw.sv, lw.se, p.rc, m)
 		cf := p.rc.cfac[p.rc.off[m] : p.rc.off[m]+lmax-m+1]
 		for j := range cf {
 			i := Index(m+j, m)
 			lw.cr[j], lw.ci[j] = c.C[i]*cf[j], c.S[i]*cf[j]
 		}
-		p.rg.legendre(lw, p.rc, m, lmax, false)
+		p.rg.legendre(lw, p.rc, m, lmax, false, p.starts(lw, m, lmax))
 		for q, n := range p.rg.north {
 			dst[n] += (lw.er[q]+lw.or[q])*w.cm[n] + (lw.ei[q]+lw.oi[q])*w.sm[n]
 			if s := p.rg.south[q]; s >= 0 {
@@ -182,15 +178,11 @@ func (p *Points) Adjoint(dst *Coeffs, v []float64) *Coeffs {
 			lw.er[q], lw.ei[q] = gr+hr, gi+hi
 			lw.or[q], lw.oi[q] = gr-hr, gi-hi
 		}
-		if m == 0 {
-			p.rg.sectoralInit(lw)
-		} else {
-			p.rg.sectoralStep(lw, p.rc.sect[m])
-		}
+		p.rg.sectoral(lw.sv, lw.se, p.rc, m)
 		nl := p.lmax - m + 1
 		clear(lw.cr[:nl])
 		clear(lw.ci[:nl])
-		p.rg.legendre(lw, p.rc, m, p.lmax, true)
+		p.rg.legendre(lw, p.rc, m, p.lmax, true, p.starts(lw, m, p.lmax))
 		cf := p.rc.cfac[p.rc.off[m] : p.rc.off[m]+nl]
 		for j := range cf {
 			i := Index(m+j, m)
@@ -203,6 +195,13 @@ func (p *Points) Adjoint(dst *Coeffs, v []float64) *Coeffs {
 		}
 	}
 	return dst
+}
+
+// starts computes the entry states of order m into the workspace.
+func (p *Points) starts(lw *legWork, m, lmax int) orderStarts {
+	lw.st.pair, lw.st.inj, lw.st.q1, lw.st.q2 = lw.st.pair[:0], lw.st.inj[:0], lw.st.q1[:0], lw.st.q2[:0]
+	p.rg.appendStarts(&lw.st, p.rc, m, lmax, lw.sv, lw.se)
+	return lw.st
 }
 
 // trig sets cm, sm to cos(m lon), sin(m lon); exact values every 32 orders,

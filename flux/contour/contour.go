@@ -57,7 +57,7 @@ type Surface struct {
 // ErrField is wrapped by the errors NewSurface returns for malformed fields.
 var ErrField = errors.New("contour: malformed field")
 
-const blockWidth = 8
+const blockWidth = 4
 
 // NewSurface validates f and prepares it for contouring. It copies what it
 // keeps, so f may be reused afterwards.
@@ -288,7 +288,7 @@ type segment struct {
 
 // cellSegments stores the segments of cell (i, j) at level c in out and
 // returns their number (0, 1 or 2).
-func (s *Surface) cellSegments(out *[2]segment, i, j int, c float64) int {
+func (s *Surface) cellSegments(out *[2]segment, memo *edgeMemo, i, j int, c float64) int {
 	n := s.n
 	j1 := j + 1
 	if j1 == n {
@@ -330,11 +330,29 @@ func (s *Surface) cellSegments(out *[2]segment, i, j int, c float64) int {
 			r = ks[(q+nk-1)%nk]
 		}
 		g := &out[ns]
-		g.from, g.a = s.edgeCrossing(k, i, j, j1, c)
-		g.to, g.b = s.edgeCrossing(r, i, j, j1, c)
+		g.from, g.a = s.cachedCrossing(memo, k, i, j, j1, c)
+		g.to, g.b = s.cachedCrossing(memo, r, i, j, j1, c)
 		ns++
 	}
 	return ns
+}
+
+// edgeMemo remembers the crossing on the right edge of the last cell, which
+// is the left edge of the next cell in the same band.
+type edgeMemo struct {
+	id int
+	x  crossing
+}
+
+func (s *Surface) cachedCrossing(memo *edgeMemo, k, i, j, j1 int, c float64) (int, crossing) {
+	if k == 3 && memo.id == 2*(i*s.n+j) {
+		return memo.id, memo.x
+	}
+	id, x := s.edgeCrossing(k, i, j, j1, c)
+	if k == 1 {
+		memo.id, memo.x = id, x
+	}
+	return id, x
 }
 
 // edgeCrossing returns the identifier and crossing of edge k (0 bottom,
@@ -356,6 +374,7 @@ func (s *Surface) edgeCrossing(k, i, j, j1 int, c float64) (int, crossing) {
 // estimate of the area below c (exact when there are no segments).
 func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int) {
 	var out [2]segment
+	memo := edgeMemo{id: -1}
 	for i := 0; i < len(s.lat)-1; i++ {
 		for b := 0; b < s.nb; b++ {
 			k := i*s.nb + b
@@ -368,7 +387,7 @@ func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int)
 			}
 			est += 0.5 * s.barea[k]
 			for j := b * s.bw; j < min((b+1)*s.bw, s.n); j++ {
-				ns := s.cellSegments(&out, i, j, c)
+				ns := s.cellSegments(&out, &memo, i, j, c)
 				for q := 0; q < ns; q++ {
 					fn(&out[q])
 				}
@@ -422,12 +441,8 @@ func bulge(g *segment) float64 {
 	if (a.ge == 0 && a.gn == 0) || (b.ge == 0 && b.gn == 0) {
 		return 0
 	}
-	d := math.Atan2(b.ge, -b.gn) - math.Atan2(a.ge, -a.gn)
-	if d > math.Pi {
-		d -= 2 * math.Pi
-	} else if d < -math.Pi {
-		d += 2 * math.Pi
-	}
+	// Tangents (east, north) = (-gn, ge); turning angle from a to b.
+	d := math.Atan2(a.ge*b.gn-a.gn*b.ge, a.gn*b.gn+a.ge*b.ge)
 	dlon := b.lon - a.lon
 	if dlon > 180 {
 		dlon -= 360
@@ -435,7 +450,7 @@ func bulge(g *segment) float64 {
 		dlon += 360
 	}
 	dlon *= deg
-	d += dlon * math.Sin(0.5*(a.lat+b.lat)*deg)
+	d += dlon * 0.5 * (a.x[2] + b.x[2]) // sin(lat) at the middle, to O(h^2)
 	dx := [3]float64{b.x[0] - a.x[0], b.x[1] - a.x[1], b.x[2] - a.x[2]}
 	return dot(dx, dx) * d / 12
 }
@@ -454,8 +469,12 @@ func (s *Surface) FractionBelow(level float64) float64 {
 // once through all longitudes. Consecutive duplicate vertices are removed and
 // rings left with fewer than three vertices are dropped.
 func (s *Surface) Rings(level float64) [][][2]float64 {
-	var segs []segment
-	s.visit(level, func(g *segment) { segs = append(segs, *g) })
+	type link struct {
+		from, to int
+		lon, lat float64
+	}
+	segs := make([]link, 0, 256)
+	s.visit(level, func(g *segment) { segs = append(segs, link{g.from, g.to, g.a.lon, g.a.lat}) })
 	next := make(map[int]int, len(segs))
 	for k, g := range segs {
 		next[g.from] = k
@@ -470,7 +489,7 @@ func (s *Surface) Rings(level float64) [][][2]float64 {
 		k := k0
 		for !used[k] {
 			used[k] = true
-			p := [2]float64{segs[k].a.lon, segs[k].a.lat}
+			p := [2]float64{segs[k].lon, segs[k].lat}
 			if m := len(ring); m == 0 || math.Abs(ring[m-1][0]-p[0]) > 1e-12 || math.Abs(ring[m-1][1]-p[1]) > 1e-12 {
 				ring = append(ring, p)
 			}

@@ -75,6 +75,16 @@ type builder struct {
 	line func(rec int) int
 }
 
+// reserve makes room for n records (an upper bound such as the number of
+// lines), so that add does not grow its slices (a grid without depth pays 4
+// unused bytes a line for the depth slice).
+func (b *builder) reserve(n int) {
+	b.lonID = make([]uint32, 0, n)
+	b.latID = make([]uint32, 0, n)
+	b.depID = make([]uint32, 0, n)
+	b.val = make([]float64, 0, n)
+}
+
 // add appends one record. Coordinates must be finite; a value equal to a
 // missing-value sentinel is stored as NaN.
 func (b *builder) add(lon, lat, dep, v float64) {

@@ -40,6 +40,7 @@ import (
 func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	b := &builder{file: name, missing: append([]float64(nil), opts.Missing...)}
 	b.line = func(rec int) int { return textRecordLine(data, rec) }
+	b.reserve(bytes.Count(data, []byte{'\n'}) + 1)
 	var (
 		plan       *columnPlan
 		titles     []string // from "# columns:"

@@ -122,16 +122,14 @@ func (m *Map) size() (int, int) {
 	return w, h
 }
 
-// mapLayout is the placement of the map on the canvas, in points.
+// mapLayout is the placement of one map on the canvas, in points with the
+// origin at the bottom left.
 type mapLayout struct {
 	proj       Projection
 	cx, cy     float64 // centre of the map
 	scale      float64 // points per unit of projected coordinates
 	x0, y0     int     // bottom-left of the raster
 	nx, ny     int     // raster size in pixels
-	barY       float64 // top of the colour bar band
-	titleY     float64 // baseline region of the title
-	width      float64
 	xmax, ymax float64
 }
 
@@ -139,29 +137,50 @@ func (l *mapLayout) pt(x, y float64) vg.Point {
 	return vg.Point{X: vg.Length(l.cx + x*l.scale), Y: vg.Length(l.cy + y*l.scale)}
 }
 
-func (m *Map) layout(w, h int) (*mapLayout, error) {
-	l := &mapLayout{proj: m.Projection.resolved(), width: float64(w)}
+// fitMap centres the largest whole map of projection p in the box with
+// bottom-left corner (bx, by), width bw and height bh.
+func fitMap(p Projection, bx, by, bw, bh float64) (*mapLayout, error) {
+	l := &mapLayout{proj: p.resolved()}
 	l.xmax, l.ymax = l.proj.Bounds()
-	const side, top, bottom = 24.0, 40.0, 92.0
-	aw, ah := float64(w)-2*side, float64(h)-top-bottom
-	if m.Title == "" {
-		ah += 18
+	if bw < 40 || bh < 20 {
+		return nil, fmt.Errorf("figure: map area %.0f x %.0f too small", bw, bh)
 	}
-	if m.Subtitle != "" {
-		ah -= 16
-	}
-	if aw < 40 || ah < 20 {
-		return nil, fmt.Errorf("figure: map size %d x %d too small", w, h)
-	}
-	l.scale = math.Min(aw/(2*l.xmax), ah/(2*l.ymax))
+	l.scale = math.Min(bw/(2*l.xmax), bh/(2*l.ymax))
 	l.nx = int(math.Ceil(2 * l.xmax * l.scale))
 	l.ny = int(math.Ceil(2 * l.ymax * l.scale))
-	l.x0 = int(math.Round((float64(w) - float64(l.nx)) / 2))
-	l.y0 = int(math.Round(bottom + (ah-float64(l.ny))/2))
+	l.x0 = int(math.Round(bx + (bw-float64(l.nx))/2))
+	l.y0 = int(math.Round(by + (bh-float64(l.ny))/2))
 	l.cx = float64(l.x0) + float64(l.nx)/2
 	l.cy = float64(l.y0) + float64(l.ny)/2
-	l.barY = float64(l.y0) - 22
-	l.titleY = float64(h) - 12
+	return l, nil
+}
+
+// Bands of a figure with maps, in points.
+const (
+	mapSide       = 24.0 // left and right margins
+	mapTitleBand  = 40.0 // title
+	mapSubBand    = 16.0 // subtitle, when present
+	mapBottomBand = 92.0 // colour bar, its caption and the legend
+)
+
+// headerHeight returns the height of the title and subtitle bands.
+func headerHeight(title, subtitle string) float64 {
+	h := 22.0
+	if title != "" {
+		h = mapTitleBand
+	}
+	if subtitle != "" {
+		h += mapSubBand
+	}
+	return h
+}
+
+func (m *Map) layout(w, h int) (*mapLayout, error) {
+	top := headerHeight(m.Title, m.Subtitle)
+	l, err := fitMap(m.Projection, mapSide, mapBottomBand, float64(w)-2*mapSide, float64(h)-top-mapBottomBand)
+	if err != nil {
+		return nil, fmt.Errorf("figure: map size %d x %d too small", w, h)
+	}
 	return l, nil
 }
 
@@ -187,96 +206,146 @@ type extremum struct {
 	ok          bool
 }
 
-func (m *Map) write(out io.Writer, svg bool) error {
+// sampled holds a map's field at the raster's pixel centres (NaN for
+// missing data, +Inf outside the map) and its extrema.
+type sampled struct {
+	vals   []float64
+	hi, lo extremum
+	noData bool
+}
+
+// sample evaluates the field at every pixel centre of the raster.
+func (m *Map) sample(l *mapLayout) (*sampled, error) {
 	f, err := m.sampler()
 	if err != nil {
+		return nil, err
+	}
+	s := &sampled{vals: make([]float64, l.nx*l.ny)}
+	for r := range l.ny {
+		y := (float64(l.y0+l.ny-r) - 0.5 - l.cy) / l.scale
+		for c := range l.nx {
+			x := (float64(l.x0+c) + 0.5 - l.cx) / l.scale
+			lon, lat, ok := l.proj.Inverse(x, y)
+			v := math.Inf(1) // outside the map
+			if ok {
+				v = f(lon, lat)
+				switch {
+				case math.IsNaN(v):
+					s.noData = true
+				case math.IsInf(v, 0):
+					return nil, fmt.Errorf("figure: field is %v at (%g, %g)", v, lon, lat)
+				default:
+					if !s.hi.ok || v > s.hi.v {
+						s.hi = extremum{lon, lat, v, true}
+					}
+					if !s.lo.ok || v < s.lo.v {
+						s.lo = extremum{lon, lat, v, true}
+					}
+				}
+			}
+			s.vals[r*l.nx+c] = v
+		}
+	}
+	if m.Grid != nil {
+		s.hi, s.lo = gridExtrema(m.Grid)
+	}
+	return s, nil
+}
+
+// image colours the samples; pixels outside the map stay transparent.
+func (s *sampled) image(l *mapLayout, sc Scale) *image.RGBA {
+	img := image.NewRGBA(image.Rect(0, 0, l.nx, l.ny))
+	for i, v := range s.vals {
+		if math.IsInf(v, 1) {
+			continue
+		}
+		c := sc.Color(v)
+		img.Pix[4*i], img.Pix[4*i+1], img.Pix[4*i+2], img.Pix[4*i+3] = c.R, c.G, c.B, c.A
+	}
+	return img
+}
+
+// checkScale reports a centre or half range that cannot be used.
+func checkScale(center, half float64) error {
+	if math.IsNaN(center) || math.IsInf(center, 0) {
+		return fmt.Errorf("figure: map centre value %v, want finite", center)
+	}
+	if half < 0 || math.IsNaN(half) || math.IsInf(half, 0) {
+		return fmt.Errorf("figure: map half range %v, want positive or zero for automatic", half)
+	}
+	return nil
+}
+
+// autoScale returns the scale with the given centre and half range, the
+// half range chosen to reach the farthest extremum when it is zero.
+func autoScale(center, half float64, ss ...*sampled) Scale {
+	if half == 0 {
+		for _, s := range ss {
+			if s.hi.ok {
+				half = math.Max(half, math.Max(s.hi.v-center, center-s.lo.v))
+			}
+		}
+	}
+	if !(half > 0) {
+		half = math.Max(math.Abs(center)*1e-3, 1e-12)
+	}
+	return Scale{Center: center, HalfRange: half}
+}
+
+func (m *Map) write(out io.Writer, svg bool) error {
+	if err := checkScale(m.Center, m.HalfRange); err != nil {
 		return err
-	}
-	if math.IsNaN(m.Center) || math.IsInf(m.Center, 0) {
-		return fmt.Errorf("figure: map centre value %v, want finite", m.Center)
-	}
-	if m.HalfRange < 0 || math.IsNaN(m.HalfRange) || math.IsInf(m.HalfRange, 0) {
-		return fmt.Errorf("figure: map half range %v, want positive or zero for automatic", m.HalfRange)
 	}
 	w, h := m.size()
 	l, err := m.layout(w, h)
 	if err != nil {
 		return err
 	}
-	// Sample the field at every pixel centre of the raster.
-	vals := make([]float64, l.nx*l.ny)
-	var hi, lo extremum
-	for r := range l.ny {
-		y := (float64(l.y0+l.ny-r) - 0.5 - l.cy) / l.scale
-		for c := range l.nx {
-			x := (float64(l.x0+c) + 0.5 - l.cx) / l.scale
-			lon, lat, ok := l.proj.Inverse(x, y)
-			v := math.NaN()
-			if ok {
-				v = f(lon, lat)
-				if !math.IsNaN(v) {
-					if !hi.ok || v > hi.v {
-						hi = extremum{lon, lat, v, true}
-					}
-					if !lo.ok || v < lo.v {
-						lo = extremum{lon, lat, v, true}
-					}
-				}
-			} else {
-				v = math.Inf(1) // outside the map
-			}
-			vals[r*l.nx+c] = v
-		}
+	s, err := m.sample(l)
+	if err != nil {
+		return err
 	}
-	if m.Grid != nil {
-		hi, lo = gridExtrema(m.Grid)
-	}
-	half := m.HalfRange
-	if half == 0 && hi.ok {
-		half = math.Max(hi.v-m.Center, m.Center-lo.v)
-	}
-	if !(half > 0) {
-		half = math.Max(math.Abs(m.Center)*1e-3, 1e-12)
-	}
-	sc := Scale{Center: m.Center, HalfRange: half}
-	img := image.NewRGBA(image.Rect(0, 0, l.nx, l.ny))
-	noData := false
-	for i, v := range vals {
-		if math.IsInf(v, 1) {
-			continue // transparent
-		}
-		noData = noData || math.IsNaN(v)
-		c := sc.Color(v)
-		img.Pix[4*i], img.Pix[4*i+1], img.Pix[4*i+2], img.Pix[4*i+3] = c.R, c.G, c.B, c.A
-	}
+	sc := autoScale(m.Center, m.HalfRange, s)
+	img := s.image(l, sc)
 	return render(out, svg, w, h, func(dc draw.Canvas) error {
-		dc.DrawImage(vg.Rectangle{
-			Min: vg.Point{X: vg.Length(l.x0), Y: vg.Length(l.y0)},
-			Max: vg.Point{X: vg.Length(l.x0 + l.nx), Y: vg.Length(l.y0 + l.ny)},
-		}, img)
-		m.drawGraticule(dc, l)
-		m.drawOutlines(dc, l)
-		m.drawBoundary(dc, l)
-		if !m.NoExtrema && hi.ok {
-			m.drawMarker(dc, l, hi.lon, hi.lat, "max "+formatValue(hi.v), true, 1)
-			m.drawMarker(dc, l, lo.lon, lo.lat, "min "+formatValue(lo.v), true, -1)
-		}
-		for _, mk := range m.Markers {
-			m.drawMarker(dc, l, mk.Lon, mk.Lat, mk.Label, false, 0)
-		}
-		ty := l.titleY
-		if m.Title != "" {
-			dc.FillText(textStyle(17, true, inkText, draw.XCenter, draw.YTop),
-				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, m.Title)
-			ty -= 22
-		}
-		if m.Subtitle != "" {
-			dc.FillText(textStyle(12, false, inkMuted, draw.XCenter, draw.YTop),
-				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, m.Subtitle)
-		}
-		m.drawColourBar(dc, l, sc, noData)
+		m.drawBody(dc, l, img, s, true)
+		drawHeader(dc, float64(w), float64(h), m.Title, m.Subtitle)
+		bar := colourBar{label: m.Label, units: m.Units, centerLabel: m.CenterLabel, levels: m.Levels, outlines: m.Outlines, noData: s.noData}
+		bar.draw(dc, float64(w), float64(l.y0)-22, sc)
 		return nil
 	})
+}
+
+// drawBody draws the raster and everything on it.
+func (m *Map) drawBody(dc draw.Canvas, l *mapLayout, img image.Image, s *sampled, labels bool) {
+	dc.DrawImage(vg.Rectangle{
+		Min: vg.Point{X: vg.Length(l.x0), Y: vg.Length(l.y0)},
+		Max: vg.Point{X: vg.Length(l.x0 + l.nx), Y: vg.Length(l.y0 + l.ny)},
+	}, img)
+	drawGraticule(dc, l, labels)
+	drawOutlines(dc, l, m.Outlines)
+	drawBoundary(dc, l)
+	if !m.NoExtrema && s.hi.ok {
+		drawMarker(dc, l, s.hi.lon, s.hi.lat, "max "+formatValue(s.hi.v), true, 1)
+		drawMarker(dc, l, s.lo.lon, s.lo.lat, "min "+formatValue(s.lo.v), true, -1)
+	}
+	for _, mk := range m.Markers {
+		drawMarker(dc, l, mk.Lon, mk.Lat, mk.Label, false, 0)
+	}
+}
+
+// drawHeader writes the title and subtitle at the top of a w x h figure.
+func drawHeader(dc draw.Canvas, w, h float64, title, subtitle string) {
+	ty := h - 12
+	if title != "" {
+		dc.FillText(textStyle(17, true, inkText, draw.XCenter, draw.YTop),
+			vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, title)
+		ty -= 22
+	}
+	if subtitle != "" {
+		dc.FillText(textStyle(12, false, inkMuted, draw.XCenter, draw.YTop),
+			vg.Point{X: vg.Length(w) / 2, Y: vg.Length(ty)}, subtitle)
+	}
 }
 
 // gridExtrema returns the largest and smallest non-NaN grid values; a
@@ -353,7 +422,7 @@ func projectLine(l *mapLayout, pts [][2]float64) [][]vg.Point {
 	return out
 }
 
-func (m *Map) drawBoundary(dc draw.Canvas, l *mapLayout) {
+func drawBoundary(dc draw.Canvas, l *mapLayout) {
 	var pts []vg.Point
 	lon0 := l.proj.CentralLon
 	for lat := -90.0; lat <= 90; lat++ {
@@ -368,7 +437,7 @@ func (m *Map) drawBoundary(dc draw.Canvas, l *mapLayout) {
 	dc.Stroke(polyPath(pts, true))
 }
 
-func (m *Map) drawGraticule(dc draw.Canvas, l *mapLayout) {
+func drawGraticule(dc draw.Canvas, l *mapLayout, labels bool) {
 	sty := draw.LineStyle{Color: inkGrid, Width: 0.6}
 	lon0 := l.proj.CentralLon
 	for lon := -150.0; lon <= 180; lon += 30 {
@@ -388,6 +457,9 @@ func (m *Map) drawGraticule(dc draw.Canvas, l *mapLayout) {
 		for _, seg := range projectLine(l, line) {
 			dc.StrokeLines(sty, seg)
 		}
+	}
+	if !labels {
+		return
 	}
 	// Labels: latitudes outside the west edge, longitudes just north of
 	// the equator.
@@ -454,8 +526,8 @@ func outlineDashes(s OutlineStyle) []vg.Length {
 	return nil
 }
 
-func (m *Map) drawOutlines(dc draw.Canvas, l *mapLayout) {
-	for _, o := range m.Outlines {
+func drawOutlines(dc draw.Canvas, l *mapLayout, outlines []Outline) {
+	for _, o := range outlines {
 		var segs [][]vg.Point
 		for _, ring := range o.Rings {
 			segs = append(segs, projectLine(l, ring)...)
@@ -476,7 +548,7 @@ func (m *Map) drawOutlines(dc draw.Canvas, l *mapLayout) {
 
 // drawMarker draws a labelled marker: an upward triangle for a maximum
 // (dir > 0), a downward one for a minimum (dir < 0), a ringed dot else.
-func (m *Map) drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label string, extreme bool, dir int) {
+func drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label string, extreme bool, dir int) {
 	x, y := l.proj.Forward(lon, lat)
 	p := l.pt(x, y)
 	const r = 5.5
@@ -516,20 +588,29 @@ func (m *Map) drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label s
 	dc.FillText(sty, q, label)
 }
 
-func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale, noData bool) {
+// colourBar is the content of the band under the maps: the colour bar with
+// its ticks, reference levels and caption, and the legend of outlines.
+type colourBar struct {
+	label, units, centerLabel string
+	levels                    []Level
+	outlines                  []Outline
+	noData                    bool
+}
+
+// draw draws the band across a figure of width width, the bar's top at top.
+func (cb *colourBar) draw(dc draw.Canvas, width, top float64, sc Scale) {
 	const barH = 13.0
-	barW := math.Min(480, l.width*0.55)
-	hasLegend := noData
-	for _, o := range m.Outlines {
+	barW := math.Min(480, width*0.55)
+	hasLegend := cb.noData
+	for _, o := range cb.outlines {
 		if o.Label != "" {
 			hasLegend = true
 		}
 	}
-	bx := (l.width - barW) / 2
+	bx := (width - barW) / 2
 	if hasLegend {
 		bx = 40
 	}
-	top := l.barY
 	// Several rows, so that a viewer smoothing the scaled image does not
 	// blend the bar with the transparent surroundings.
 	bar := image.NewRGBA(image.Rect(0, 0, 512, 8))
@@ -554,7 +635,7 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale, noData bool)
 		dc.FillText(ts, vg.Point{X: vg.Length(x), Y: vg.Length(top - barH - 6)}, formatValue(v))
 	}
 	// Reference levels: a line across the bar and a label above it.
-	for _, lv := range m.Levels {
+	for _, lv := range cb.levels {
 		if lv.Value < lo || lv.Value > hi || math.IsNaN(lv.Value) {
 			continue
 		}
@@ -570,16 +651,16 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale, noData bool)
 	cxp := bx + barW/2
 	dc.SetColor(inkText)
 	dc.Fill(polyPath([]vg.Point{{X: vg.Length(cxp), Y: vg.Length(top)}, {X: vg.Length(cxp - 4), Y: vg.Length(top + 5)}, {X: vg.Length(cxp + 4), Y: vg.Length(top + 5)}}, true))
-	cl := m.CenterLabel
+	cl := cb.centerLabel
 	if cl == "" {
 		cl = "mean"
 	}
-	caption := m.Label
-	if m.Units != "" {
+	caption := cb.label
+	if cb.units != "" {
 		if caption != "" {
 			caption += " "
 		}
-		caption += "(" + m.Units + ")"
+		caption += "(" + cb.units + ")"
 	}
 	if caption != "" {
 		caption += ";  "
@@ -594,17 +675,20 @@ func (m *Map) drawColourBar(dc draw.Canvas, l *mapLayout, sc Scale, noData bool)
 	x := bx + barW + 40
 	y := top - 4
 	ls := textStyle(11, false, inkText, draw.XLeft, draw.YCenter)
-	for _, o := range m.Outlines {
-		if o.Label == "" {
+	seen := map[string]bool{}
+	for _, o := range cb.outlines {
+		key := fmt.Sprint(o.Style, o.Label)
+		if o.Label == "" || seen[key] {
 			continue
 		}
+		seen[key] = true
 		seg := []vg.Point{{X: vg.Length(x), Y: vg.Length(y)}, {X: vg.Length(x + 30), Y: vg.Length(y)}}
 		ink := draw.LineStyle{Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 1.5, Dashes: outlineDashes(o.Style)}
 		dc.StrokeLines(ink, seg)
 		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, o.Label)
 		y -= 17
 	}
-	if noData {
+	if cb.noData {
 		dc.SetColor(NoDataColor)
 		dc.Fill(rectPath(vg.Length(x+8), vg.Length(y-6), vg.Length(x+22), vg.Length(y+6)))
 		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, "no data")

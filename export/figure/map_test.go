@@ -169,6 +169,7 @@ func TestDeterministic(t *testing.T) {
 		"map":         demoMap(),
 		"spectrum":    &Spectrum{Series: []Series{{Label: "a", Y: []float64{1, 2, 3, 0.5}}}},
 		"correlation": &Correlation{Series: []Series{{Label: "a", Y: []float64{1, 0.5, -0.2}}}},
+		"panel":       &Panel{Maps: []*Map{{Field: demoField}, {Grid: demoGrid()}}, Center: 65},
 		"sweep":       &Sweep{XLabel: "q*", Panels: []SweepPanel{{YLabel: "y", Series: []XYSeries{{X: []float64{1, 2}, Y: []float64{1, 3}}}}}},
 	}
 	for name, f := range figs {

@@ -91,6 +91,11 @@ func NewPattern(dlnvs *sh.Coeffs, opt *PatternOptions) (*Pattern, error) {
 	if o.Taper != nil && len(o.Taper) < o.LMax+1 {
 		return nil, fmt.Errorf("%w: taper has %d weights, need LMax+1 = %d", ErrPattern, len(o.Taper), o.LMax+1)
 	}
+	for l, w := range o.Taper {
+		if math.IsNaN(w) || w < 0 {
+			return nil, fmt.Errorf("%w: taper weight %g at degree %d: weights must be 0 or more (a negative weight flips that degree of the pattern)", ErrPattern, w, l)
+		}
+	}
 	if o.TaperName == "" {
 		o.TaperName = "none"
 		if o.Taper != nil {

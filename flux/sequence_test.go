@@ -159,3 +159,30 @@ func TestDegreeWarnings(t *testing.T) {
 		t.Error("a build without mean flux must be refused")
 	}
 }
+
+func TestUnitWarnings(t *testing.T) {
+	// Unit slips a user is likely to make: mW/m^2 given as W/m^2, km as m,
+	// percent per kelvin as a fraction per kelvin.
+	p, _ := Ideal(nil, Term{L: 2, M: 0, Weight: 1})
+	r, _ := p.WithQStar(1, Reference{QMean: 80})
+	if !hasWarning(r, "units") {
+		t.Errorf("q_mean 80 W/m^2: no unit warning in %q", r.Warnings)
+	}
+	r, _ = p.WithPhysical(Physical{Conductivity: 10, Thickness: 200, DlnVsDT: -2e-5}, Reference{QMean: 0.08})
+	if !hasWarning(r, "metres") {
+		t.Errorf("thickness 200 m: no warning in %q", r.Warnings)
+	}
+	r, _ = p.WithPhysical(Physical{Conductivity: 10, Thickness: 2e5, DlnVsDT: -0.002}, Reference{QMean: 0.08})
+	if !hasWarning(r, "percent") {
+		t.Errorf("dlnVs/dT -0.002: no warning in %q", r.Warnings)
+	}
+	r, _ = p.WithPhysical(Physical{Conductivity: 10, Thickness: 2e5, DlnVsDT: -2e-5}, Reference{QMean: 0.08})
+	for _, w := range r.Warnings {
+		if contains(w, "units") || contains(w, "metres") || contains(w, "percent") {
+			t.Errorf("usual settings drew a unit warning: %q", w)
+		}
+	}
+	if _, err := NewPattern(randomDlnVs(1, 4), &PatternOptions{Taper: []float64{1, 1, -1, 1, 1}}); err == nil {
+		t.Error("a negative taper weight must be refused")
+	}
+}

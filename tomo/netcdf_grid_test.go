@@ -398,3 +398,31 @@ func TestReadNetCDFWriterRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+func TestReadNetCDFUnsignedCDF5(t *testing.T) {
+	// ushort (CDF-5) packed values; 65535 is the default fill of ushort
+	// (netCDF classic format specification, NC_FILL_USHORT) and marks the
+	// one missing point, as no _FillValue is given.
+	data := ncCDL(t, "cdf5", `netcdf x {
+dimensions: lon = 4 ; lat = 2 ;
+variables:
+ float lon(lon) ; lon:units = "degrees_east" ;
+ float lat(lat) ; lat:units = "degrees_north" ;
+ ushort v(lat, lon) ; v:scale_factor = 0.5 ; v:add_offset = -100. ; v:units = "m s-1" ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 45 ;
+ v = 0, 1, 2, 3, 60000, 65534, 65535, 7 ; }`)
+	g, err := ReadNetCDF("u.nc", data, ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []float64{-100, -99.5, -99, -98.5, 29900, 32667, math.NaN(), -96.5} // packed*0.5 - 100, CF-1.8 section 8.1
+	for n, w := range want {
+		v, ok := g.At(0, n/4, n%4)
+		if math.IsNaN(w) != !ok || (ok && v != w) {
+			t.Errorf("point %d: %v %v, want %v", n, v, ok, w)
+		}
+	}
+	if g.Source.Format != "netcdf-cdf5" || g.Units != "m s-1" || g.Reg != NodeRegistered { // lon 0 E sits on a node
+		t.Errorf("Format %q Units %q Reg %v", g.Source.Format, g.Units, g.Reg)
+	}
+}

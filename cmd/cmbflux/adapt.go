@@ -17,9 +17,9 @@ import (
 func demoGrid() (*tomo.Grid, error) { return tomo.Demo(), nil }
 
 // fitLayer expands the layer's dlnVs up to lmax in the canonical convention
-// by area-weighted quadrature on the layer's own rings (each sample stands
-// for its cell's area), after filling missing points with the mean of the
-// valid ones. The rings must cover the globe in longitude.
+// by the area-weighted least-squares fit of flux/sh (missing points left
+// out). A degree the samples cannot determine is refused with the largest
+// safe degree.
 func fitLayer(l *tomo.Layer, lmax int) (*sh.Coeffs, error) {
 	nlat, nlon := len(l.Lat), len(l.Lon)
 	if nlat < 2 || nlon < 3 {
@@ -30,24 +30,26 @@ func fitLayer(l *tomo.Layer, lmax int) (*sh.Coeffs, error) {
 		colat[j] = (90 - l.Lat[nlat-1-j]) * math.Pi / 180 // north to south
 	}
 	g := sh.NewRings(colat, nlon, l.Lon[0]*math.Pi/180)
-	aw := g.AreaWeights()
-	g.Weight = make([]float64, nlat)
-	for i, a := range aw {
-		g.Weight[i] = a * float64(nlon) / (2 * math.Pi)
-	}
 	field := make([]float64, nlat*nlon)
+	var valid []bool
+	if l.Valid != nil {
+		valid = make([]bool, nlat*nlon)
+	}
 	for j := 0; j < nlat; j++ {
 		src := nlat - 1 - j
 		for i := 0; i < nlon; i++ {
 			v, ok := l.At(src, i)
-			if !ok {
-				v = l.Mean
-			}
 			field[j*nlon+i] = v
+			if valid != nil {
+				valid[j*nlon+i] = ok
+			}
 		}
 	}
-	tr := sh.NewTransform(lmax, g)
-	return tr.Analysis(nil, field), nil
+	c, _, err := sh.FitGrid(lmax, g, field, &sh.FitOptions{Valid: valid})
+	if err != nil {
+		return nil, &tomo.InputError{File: l.Source.Path, Err: fmt.Errorf("%v (--lmax)", err)}
+	}
+	return c, nil
 }
 
 // taperWeights parses none, cos:L1:L2 or gauss:DEG and returns the weight of

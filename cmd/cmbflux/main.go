@@ -112,6 +112,10 @@ func init() {
 	commands = []command{
 		{"build", "write one heat-flux boundary condition", runBuild},
 		{"sweep", "write a boundary condition for every point of a parameter sweep", runSweep},
+		{"inspect", "describe a tomography grid or a coefficient file", runInspect},
+		{"convert", "change the convention of a coefficient file, or go between grid and coefficients", runConvert},
+		{"plot", "draw a map and a spectrum of a grid or coefficient file", runPlot},
+		{"demo", "run the whole job on the embedded demo scenario and write the report", runDemo},
 	}
 }
 

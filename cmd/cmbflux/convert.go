@@ -1,0 +1,228 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"os"
+
+	"cmbflux/cmd/cmbflux/internal/outdir"
+	"cmbflux/export"
+	"cmbflux/flux/sh"
+	"cmbflux/tomo"
+)
+
+const convertHelp = `Usage: cmbflux convert IN --out OUT [--norm N] [--condon-shortley] [--form F] [--no-degree0]
+       cmbflux convert IN --out OUT.nc --grid G          coefficients to a grid
+       cmbflux convert IN --out OUT.txt --lmax N         a grid to coefficients
+
+Rewrites a coefficient file in another convention: normalization, phase,
+real or complex form, degree 0 in or out. The values of the field do not
+change; the header of OUT states the new convention. The format of OUT
+follows its extension (.txt, .csv, .json; .nc, .txt, .csv for grids);
+--out - writes a text table to standard output.
+
+A plain table made elsewhere (columns l m cos sin, or l m re im with
+--from-form complex, no cmbflux header) is read only when its convention is
+declared with --from-norm (and --from-condon-shortley if it has the phase).
+
+With --grid, the expansion is sampled on a grid (gauss:NLAT, equiangular:N
+or lonlat:STEP); with --lmax, a grid file (text, CSV, netCDF) is expanded
+to degree N by quadrature over its cells (missing values are replaced by
+the mean).
+`
+
+const convertExample = `
+Examples:
+
+  cmbflux convert demo-out/bc/coefficients.txt --norm schmidt --condon-shortley --out schmidt.txt
+  cmbflux convert demo-out/bc/coefficients.txt --grid lonlat:2 --out flux.nc
+  cmbflux convert demo-out/bc/field.nc --lmax 12 --out refit.txt
+`
+
+func runConvert(stdout, stderr io.Writer, args []string) error {
+	p := newParser("convert", stdout, convertHelp, convertExample)
+	var out, norm, form, fromNorm, fromForm, grid string
+	var cs, fromCS, noDeg0, force bool
+	lmax := 0
+	norm, form = "orthonormal", "real"
+	p.stringVar(&out, "out", "FILE", "output file (- for standard output)")
+	p.stringVar(&norm, "norm", "N", "normalization to write: orthonormal, fully-normalized, schmidt, unnormalized")
+	p.boolVar(&cs, "condon-shortley", "write with the Condon-Shortley phase (-1)^m")
+	p.stringVar(&form, "form", "F", "real (cos/sin) or complex")
+	p.boolVar(&noDeg0, "no-degree0", "leave out degree 0 (the mean)")
+	p.stringVar(&fromNorm, "from-norm", "N", "declare the normalization of a plain table without a cmbflux header")
+	p.boolVar(&fromCS, "from-condon-shortley", "declare that a plain table includes the Condon-Shortley phase")
+	p.stringVar(&fromForm, "from-form", "F", "declare the form of a plain table: real or complex")
+	p.stringVar(&grid, "grid", "G", "sample the coefficients on this grid instead of converting them")
+	p.intVar(&lmax, "lmax", "N", "expand a grid file to this degree")
+	p.boolVar(&force, "force", "overwrite OUT if it exists")
+	pos, err := p.parse(args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usagef("convert", "give one input file")
+	}
+	if out == "" {
+		return usagef("convert", "no output: give --out FILE (or --out - for standard output)")
+	}
+	if out != "-" && !force {
+		if _, err := os.Stat(out); err == nil {
+			return fmt.Errorf("%s: %w; give --force to overwrite it", out, outdir.ErrNotEmpty)
+		}
+	}
+	data, name, err := readInput(pos[0])
+	if err != nil {
+		return err
+	}
+	n, err := sh.ParseNormalization(norm)
+	if err != nil {
+		return usagef("convert", "--norm %q: want orthonormal, fully-normalized, schmidt or unnormalized", norm)
+	}
+	if form != "real" && form != "complex" {
+		return usagef("convert", "--form %q: want real or complex", form)
+	}
+	conv := sh.Convention{Norm: n, CondonShortley: cs}
+
+	format := export.FormatText
+	if out != "-" {
+		if format, err = export.FormatFromPath(out); err != nil {
+			return usagef("convert", "--out %s: %v", out, err)
+		}
+	}
+	var body []byte
+	var warns []string
+	if lmax > 0 {
+		if grid != "" {
+			return usagef("convert", "give --lmax (grid to coefficients) or --grid (coefficients to grid), not both")
+		}
+		g, err := tomo.ReadBytes(name, data, tomo.ReadOptions{})
+		if err != nil {
+			return err
+		}
+		c, missing, err := fitGrid(g, lmax)
+		if err != nil {
+			return err
+		}
+		if missing > 0 {
+			warns = append(warns, fmt.Sprintf("%s: %d missing values were replaced by the mean before the expansion", name, missing))
+		}
+		if 2*lmax+1 > g.NLon() || lmax+1 > g.NLat() {
+			warns = append(warns, fmt.Sprintf("%s: lmax %d is more than a %d x %d grid resolves", name, lmax, g.NLon(), g.NLat()))
+		}
+		if format == export.FormatNetCDF {
+			return usagef("convert", "coefficients are written as .txt, .csv or .json, not %s", out)
+		}
+		m := &export.Meta{Quantity: g.Name + " expanded from " + name, Units: g.Units, Version: version,
+			Inputs: []export.Input{{Name: name, SHA256: g.Source.SHA256}}}
+		var b bytes.Buffer
+		if err := export.WriteCoeffs(&b, format, c, m, &export.CoeffOptions{Conv: conv, Complex: form == "complex", OmitDegree0: noDeg0}); err != nil {
+			return err
+		}
+		body = b.Bytes()
+	} else {
+		opt := &export.CoeffReadOptions{}
+		if fromNorm != "" {
+			fn, err := sh.ParseNormalization(fromNorm)
+			if err != nil {
+				return usagef("convert", "--from-norm %q: want orthonormal, fully-normalized, schmidt or unnormalized", fromNorm)
+			}
+			opt.Conv = &sh.Convention{Norm: fn, CondonShortley: fromCS}
+			opt.Complex = fromForm == "complex"
+		}
+		t, err := export.ReadCoeffs(bytes.NewReader(data), name, opt)
+		if err != nil {
+			return err
+		}
+		warns = append(warns, t.Warnings...)
+		m := t.Meta
+		m.Version = version
+		can, err := t.Coeffs.Convert(sh.Canonical)
+		if err != nil {
+			return inputErrorf("%s: %v", name, err)
+		}
+		var b bytes.Buffer
+		if grid != "" {
+			sg, err := parseGrid(grid)
+			if err != nil {
+				return err
+			}
+			if format == export.FormatJSON {
+				return usagef("convert", "grids are written as .nc, .txt or .csv, not %s", out)
+			}
+			vals := sh.NewTransform(can.LMax, sg).Synthesis(nil, can)
+			eg := &export.Grid{Values: vals, Name: "value", Kind: "user"}
+			switch sg.Kind {
+			case sh.GaussLegendre:
+				eg.Kind = "gauss-legendre"
+			case sh.DriscollHealy:
+				eg.Kind = "equiangular"
+			}
+			for i := range sg.Colat {
+				eg.Lat = append(eg.Lat, round6(90-sg.Colat[i]*180/math.Pi))
+			}
+			for j := 0; j < sg.NLon; j++ {
+				eg.Lon = append(eg.Lon, round6(sg.Lon(j)*180/math.Pi))
+			}
+			if err := export.WriteGrid(&b, format, eg, &m); err != nil {
+				return err
+			}
+		} else {
+			if format == export.FormatNetCDF {
+				return usagef("convert", "coefficients are written as .txt, .csv or .json; give --grid to write a netCDF grid")
+			}
+			if err := conv.CheckDegree(can.LMax); err != nil {
+				return usagef("convert", "%v", err)
+			}
+			if err := export.WriteCoeffs(&b, format, can, &m, &export.CoeffOptions{Conv: conv, Complex: form == "complex", OmitDegree0: noDeg0}); err != nil {
+				return err
+			}
+			if conv != sh.Canonical || form != "real" {
+				warns = append(warns, fmt.Sprintf("non-default convention: written %s, %s form; check that this is exactly the convention your simulation code's documentation states", conv, form))
+			}
+		}
+		body = b.Bytes()
+	}
+	for _, w := range warns {
+		fmt.Fprintln(stderr, "cmbflux: warning: "+w)
+	}
+	if out == "-" {
+		_, err := stdout.Write(body)
+		return err
+	}
+	return outdir.WriteFile(out, body)
+}
+
+// fitGrid expands the values of a single-layer grid (the deepest level of a
+// grid with depths) without any unit conversion.
+func fitGrid(g *tomo.Grid, lmax int) (*sh.Coeffs, int, error) {
+	nlat, nlon := g.NLat(), g.NLon()
+	off := (g.NDepth() - 1) * nlat * nlon
+	vals := g.Values[off : off+nlat*nlon]
+	var valid []bool
+	missing := 0
+	if g.Valid != nil {
+		valid = g.Valid[off : off+nlat*nlon]
+		for _, v := range valid {
+			if !v {
+				missing++
+			}
+		}
+	}
+	l := &tomo.Layer{Lon: g.Lon, Lat: g.Lat, Values: vals, Valid: valid, Reg: g.Reg, Source: g.Source}
+	var s, n float64
+	for i, v := range vals {
+		if valid == nil || valid[i] {
+			s += v
+			n++
+		}
+	}
+	if n == 0 {
+		return nil, 0, inputErrorf("%s: no valid values", g.Source.Path)
+	}
+	l.Mean = s / n
+	c, err := fitLayer(l, lmax)
+	return c, missing, err
+}

@@ -144,7 +144,10 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 	if opt.Conv.Norm < sh.Orthonormal || opt.Conv.Norm > sh.Unnormalized {
 		return nil, fmt.Errorf("export: unknown normalization %v", opt.Conv.Norm)
 	}
-	cc := convertCoeffs(c, opt.Conv)
+	cc, err := convertCoeffs(c, opt.Conv)
+	if err != nil {
+		return nil, err
+	}
 	t := &coeffTable{}
 	form, orders, expansion := "real", "0..l", "f(theta, phi) = sum_{l} sum_{m=0..l} N_lm P_l^m(cos theta) [cos_lm cos(m phi) + sin_lm sin(m phi)]"
 	t.columns = [4]string{"l", "m", "cos", "sin"}

@@ -1,52 +1,23 @@
 package export
 
 import (
+	"fmt"
 	"math"
 
 	"cmbflux/flux/sh"
 )
 
-// convertCoeffs returns c in convention to (c itself when it already is).
-//
-// A real field f = sum N_lm P_l^m {C cos, S sin} keeps its value when the
-// coefficients are multiplied by N_from/N_to and by (-1)^m when exactly one
-// of the two conventions carries the Condon-Shortley phase.
-// TODO(export): switch to (*sh.Coeffs).Convert once flux/sh has it.
-func convertCoeffs(c *sh.Coeffs, to sh.Convention) *sh.Coeffs {
+// convertCoeffs returns c in convention to (c itself when it already is),
+// through (*sh.Coeffs).Convert.
+func convertCoeffs(c *sh.Coeffs, to sh.Convention) (*sh.Coeffs, error) {
 	if c.Conv == to {
-		return c
+		return c, nil
 	}
-	d := sh.NewCoeffs(c.LMax, to)
-	for l := 0; l <= c.LMax; l++ {
-		for m := 0; m <= l; m++ {
-			f := math.Exp(logNorm(c.Conv.Norm, l, m) - logNorm(to.Norm, l, m))
-			if c.Conv.CondonShortley != to.CondonShortley && m%2 == 1 {
-				f = -f
-			}
-			i := sh.Index(l, m)
-			d.C[i], d.S[i] = c.C[i]*f, c.S[i]*f
-		}
+	d, err := c.Convert(to)
+	if err != nil {
+		return nil, fmt.Errorf("export: converting coefficients from %v to %v: %w", c.Conv, to, err)
 	}
-	return d
-}
-
-// logNorm returns log N_lm for the real harmonics of normalization n.
-func logNorm(n sh.Normalization, l, m int) float64 {
-	if n == sh.Unnormalized {
-		return 0
-	}
-	lg := func(x float64) float64 { v, _ := math.Lgamma(x); return v }
-	v := lg(float64(l-m+1)) - lg(float64(l+m+1))
-	if m != 0 {
-		v += math.Ln2
-	}
-	switch n {
-	case sh.FourPi:
-		v += math.Log(float64(2*l + 1))
-	case sh.Orthonormal:
-		v += math.Log(float64(2*l+1) / (4 * math.Pi))
-	}
-	return v / 2
+	return d, nil
 }
 
 const complexExpansion = "f(theta, phi) = sum_{l} sum_{m=-l..l} c_lm N_l|m| P_l^|m|(cos theta) exp(i m phi)"

@@ -66,8 +66,10 @@ func ReadCoeffsFile(path string, opt *CoeffReadOptions) (*CoeffTable, error) {
 }
 
 // maxReadLMax bounds the degree accepted from a file, so that a corrupt
-// file cannot ask for an enormous allocation.
-const maxReadLMax = 10000
+// file cannot ask for an enormous allocation: 2700, the degree to which the
+// Legendre recursions of flux/sh are stable (Holmes & Featherstone 2002).
+// Fuzz targets lower it.
+var maxReadLMax = 2700
 
 // ReadCoeffs reads a coefficient table written by WriteCoeffsText,
 // WriteCoeffsCSV or WriteCoeffsJSON, or a plain "l m cos sin" table (no

@@ -91,7 +91,9 @@ type Sweep struct {
 	Title string
 	// XLabel names the swept parameter, shared by all panels.
 	XLabel string
-	// Panels are drawn left to right; the legend is in the first.
+	// Panels are drawn left to right under one legend: series i has the
+	// same style and label (taken from the first panel that names it) in
+	// every panel.
 	Panels []SweepPanel
 	// Width and Height are the size in pixels (points in SVG); zero means
 	// 900 x 380.
@@ -393,7 +395,7 @@ func (s *Sweep) plots() ([]*plot.Plot, error) {
 		return nil, errors.New("figure: sweep summary with no panels")
 	}
 	var ps []*plot.Plot
-	for k, pn := range s.Panels {
+	for _, pn := range s.Panels {
 		p := newPlot("", s.XLabel, pn.YLabel)
 		addGrid(p)
 		p.Legend.Left = true
@@ -407,10 +409,7 @@ func (s *Sweep) plots() ([]*plot.Plot, error) {
 					xmin, xmax = math.Min(xmin, ser.X[j]), math.Max(xmax, ser.X[j])
 				}
 			}
-			label := ser.Label
-			if k > 0 {
-				label = ""
-			}
+			label := "" // the legend is shared, above the panels
 			ls, gs := seriesStyle(i)
 			if err := addSeries(p, label, runs(ser.X, ser.Y, finite), ls, &gs); err != nil {
 				return nil, err
@@ -423,9 +422,6 @@ func (s *Sweep) plots() ([]*plot.Plot, error) {
 			}
 			id.LineStyle = draw.LineStyle{Color: inkMuted, Width: 1, Dashes: []vg.Length{5, 3}}
 			p.Add(id)
-			if k == 0 {
-				p.Legend.Add("y = x", id)
-			}
 		}
 		if pn.Fraction {
 			p.Y.Min, p.Y.Max = 0, 1
@@ -452,7 +448,10 @@ func (s *Sweep) write(out io.Writer, svg bool) error {
 		if s.Title != "" {
 			dc.FillText(textStyle(15, true, inkText, draw.XCenter, draw.YTop),
 				vg.Point{X: vg.Length(w) / 2, Y: vg.Length(h) - 8}, s.Title)
-			top = 34
+			top = 32
+		}
+		if s.drawLegend(dc, float64(w), float64(h)-float64(top)-8) {
+			top += 22
 		}
 		body := draw.Crop(dc, 8, -8, 8, -top)
 		tiles := draw.Tiles{Rows: 1, Cols: len(ps), PadX: 18}
@@ -462,4 +461,58 @@ func (s *Sweep) write(out io.Writer, svg bool) error {
 		}
 		return nil
 	})
+}
+
+// drawLegend draws the shared legend centred on one row at height y and
+// reports whether there was anything to show.
+func (s *Sweep) drawLegend(dc draw.Canvas, width, y float64) bool {
+	var labels []string
+	identity := false
+	for _, pn := range s.Panels {
+		identity = identity || pn.Identity
+		for i, ser := range pn.Series {
+			for len(labels) <= i {
+				labels = append(labels, "")
+			}
+			if labels[i] == "" {
+				labels[i] = ser.Label
+			}
+		}
+	}
+	type entry struct {
+		label string
+		style int // series index, or -1 for the identity line
+	}
+	var es []entry
+	for i, l := range labels {
+		if l != "" {
+			es = append(es, entry{l, i})
+		}
+	}
+	if identity {
+		es = append(es, entry{"y = x", -1})
+	}
+	if len(es) == 0 {
+		return false
+	}
+	ts := textStyle(11.5, false, inkText, draw.XLeft, draw.YCenter)
+	const sample, gap, space = 30.0, 6.0, 22.0
+	total := 0.0
+	for _, e := range es {
+		total += sample + gap + float64(ts.Width(e.label)) + space
+	}
+	x := (width - total + space) / 2
+	for _, e := range es {
+		a, b := vg.Point{X: vg.Length(x), Y: vg.Length(y)}, vg.Point{X: vg.Length(x + sample), Y: vg.Length(y)}
+		if e.style < 0 {
+			dc.StrokeLines(draw.LineStyle{Color: inkMuted, Width: 1, Dashes: []vg.Length{5, 3}}, []vg.Point{a, b})
+		} else {
+			ls, gs := seriesStyle(e.style)
+			dc.StrokeLines(ls, []vg.Point{a, b})
+			dc.DrawGlyphNoClip(gs, vg.Point{X: vg.Length(x + sample/2), Y: vg.Length(y)})
+		}
+		dc.FillText(ts, vg.Point{X: vg.Length(x + sample + gap), Y: vg.Length(y)}, e.label)
+		x += sample + gap + float64(ts.Width(e.label)) + space
+	}
+	return true
 }

@@ -509,10 +509,14 @@ func (r *ncReader) lonOrder(name string, lon []float64) ([]int, error) {
 // even checks that the ascending coordinates x are evenly spaced to a
 // relative tolerance that allows for coordinates stored as float.
 func (r *ncReader) even(name string, x []float64) error {
-	const relTol = 1e-4 // float32 coordinates of a 0.1-degree grid err by about 1e-5 degrees; common practice
+	// Tolerance: 1e-4 of the step (common practice) plus four half-ulps of
+	// float32 at the largest coordinate, since coordinates stored as float
+	// round to 2^-24 relative (IEEE 754 binary32): a 0.1-degree grid near
+	// 360 E errs by up to 3e-5 degrees between neighbours.
 	step := (x[len(x)-1] - x[0]) / float64(len(x)-1)
+	tol := 1e-4*step + 4*0x1p-24*math.Max(math.Abs(x[0]), math.Abs(x[len(x)-1]))
 	for i := 1; i < len(x); i++ {
-		if d := x[i] - x[i-1]; math.Abs(d-step) > relTol*step {
+		if d := x[i] - x[i-1]; math.Abs(d-step) > tol {
 			return r.fail(name, "coordinate is not evenly spaced: step %g between indices %d and %d, mean step %g; resample to a regular grid", d, i-1, i, step)
 		}
 	}

@@ -426,3 +426,40 @@ data: lon = 0, 90, 180, 270 ; lat = -45, 45 ;
 		t.Errorf("Format %q Units %q Reg %v", g.Source.Format, g.Units, g.Reg)
 	}
 }
+
+func TestReadNetCDFFloat32TenthDegree(t *testing.T) {
+	// A 0.1-degree grid with float coordinates: rounding to binary32
+	// (IEEE 754) makes neighbouring steps differ by up to about 3e-5
+	// degrees near 360 E, which must still count as evenly spaced.
+	const nlon, nlat = 3600, 5
+	lon := make([]float32, nlon)
+	for i := range lon {
+		lon[i] = float32(0.05 + 0.1*float64(i))
+	}
+	lat := []float32{-0.2, -0.1, 0, 0.1, 0.2}
+	f := &netcdf.File{}
+	f.AddDim("lat", nlat).AddDim("lon", nlon)
+	f.AddVar("lat", netcdf.Float, []string{"lat"}, lat).SetAttr("units", "degrees_north")
+	f.AddVar("lon", netcdf.Float, []string{"lon"}, lon).SetAttr("units", "degrees_east")
+	f.AddVar("v", netcdf.Float, []string{"lat", "lon"}, make([]float32, nlon*nlat))
+	var buf bytes.Buffer
+	if err := netcdf.Encode(&buf, f, netcdf.CDF1); err != nil {
+		t.Fatal(err)
+	}
+	g, err := ReadNetCDF("tenth.nc", buf.Bytes(), ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g.NLon() != nlon || g.Lon[nlon-1] != float64(lon[nlon-1]) {
+		t.Errorf("NLon %d, last %v", g.NLon(), g.Lon[nlon-1])
+	}
+	// An uneven step of 1e-3 degrees (1 % of the step) is still caught.
+	lon[1000] += 1e-3
+	buf.Reset()
+	if err := netcdf.Encode(&buf, f, netcdf.CDF1); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := ReadNetCDF("tenth.nc", buf.Bytes(), ReadOptions{}); err == nil || !strings.Contains(err.Error(), "not evenly spaced") {
+		t.Errorf("uneven grid: error %v", err)
+	}
+}

@@ -161,7 +161,12 @@ type Outlines struct {
 // Outlines returns the outlines of the negative and sub-adiabatic regions
 // (Subadiabatic is nil without an adiabatic reference). They are the plain
 // polygons of the search grid, accurate to its spacing; the area fractions in
-// Diagnostics are computed more precisely.
+// Diagnostics are computed more precisely. Longitudes are in [-180, 180):
+// a ring crossing the antimeridian jumps by about 360 degrees between two
+// vertices (edges are the short great-circle arcs), and a ring around a
+// pole runs once through all longitudes; cut them for flat formats (RFC
+// 7946, section 3.1.9). A region covering the whole CMB has no outline (nil
+// rings with area fraction 1).
 func (r *Result) Outlines() Outlines {
 	p := r.Pattern
 	var o Outlines
@@ -171,12 +176,13 @@ func (r *Result) Outlines() Outlines {
 			return nil
 		}
 		rs := p.surf.Rings(c)
-		if p.rot != nil {
-			for _, ring := range rs {
-				for k, v := range ring {
-					pc, pl := p.rot.ApplyPoint((90-v[1])/rad2deg, v[0]/rad2deg)
-					ring[k] = point{pc, pl}.lonLat()
+		for _, ring := range rs {
+			for k, v := range ring {
+				pt := point{(90 - v[1]) / rad2deg, v[0] / rad2deg}
+				if p.rot != nil {
+					pt.colat, pt.lon = p.rot.ApplyPoint(pt.colat, pt.lon)
 				}
+				ring[k] = pt.lonLat()
 			}
 		}
 		return rs

@@ -9,6 +9,7 @@ import (
 	"cmbflux/flux/sh"
 
 	"gonum.org/v1/gonum/integrate/quad"
+	"gonum.org/v1/gonum/optimize"
 )
 
 const (
@@ -400,6 +401,47 @@ func TestExtremaNeverExceeded(t *testing.T) {
 			if v := g.Evaluate((90-minAt[1])/rad2deg, minAt[0]/rad2deg); !near(v, gmin, 1e-12) {
 				t.Errorf("lmax %d seed %d: field at the minimum %g != %g", lmax, seed, v, gmin)
 			}
+		}
+	}
+}
+
+func TestExtremaManyPeaks(t *testing.T) {
+	// Y_16^16c = N sin^16(colat) cos(16 lon) has 16 equal maxima on the
+	// equator at lon = 22.5 k and 16 minima between them (closed form);
+	// small Y_1^1s and Y_3^0 terms make them unequal, so only a search that
+	// refines several candidates finds the global extrema. Reference: gonum's
+	// Nelder-Mead (optimize, a general-purpose library) started from every
+	// analytic peak; no dense sample may exceed the extrema either.
+	p, err := Ideal(nil, Term{L: 16, M: 16, Weight: 1}, Term{L: 1, M: 1, Sin: true, Weight: 0.02}, Term{L: 3, M: 0, Weight: 0.03})
+	if err != nil {
+		t.Fatal(err)
+	}
+	gmax, _, gmin, _ := p.Extrema()
+	c := p.Coeffs()
+	best := func(s float64, lon0 float64) float64 {
+		v := math.Inf(-1)
+		for k := range 16 {
+			x0 := []float64{math.Pi / 2, (lon0 + 22.5*float64(k)) / rad2deg}
+			res, err := optimize.Minimize(optimize.Problem{Func: func(x []float64) float64 {
+				return -s * c.Evaluate(x[0], x[1])
+			}}, x0, &optimize.Settings{Converger: &optimize.FunctionConverge{Absolute: 1e-15, Iterations: 200}}, &optimize.NelderMead{})
+			if err != nil && res == nil {
+				t.Fatal(err)
+			}
+			v = math.Max(v, -res.F)
+		}
+		return s * v
+	}
+	if ref := best(1, 0); math.Abs(ref-gmax) > 1e-9*(gmax-gmin) {
+		t.Errorf("maximum %.12g, Nelder-Mead from the peaks %.12g", gmax, ref)
+	}
+	if ref := best(-1, 11.25); math.Abs(ref-gmin) > 1e-9*(gmax-gmin) {
+		t.Errorf("minimum %.12g, Nelder-Mead from the troughs %.12g", gmin, ref)
+	}
+	vals := sh.NewTransform(16, sh.NewGaussLegendre(170, 340)).Synthesis(nil, c)
+	for _, v := range vals {
+		if v > gmax+1e-12 || v < gmin-1e-12 {
+			t.Fatalf("sample %g outside [%g, %g]", v, gmin, gmax)
 		}
 	}
 }

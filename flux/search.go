@@ -133,7 +133,8 @@ func (g *denseGrid) surface() (*contour.Surface, error) {
 
 // candidates returns up to k grid points that are local maxima of s*f
 // (s = +1 for maxima, -1 for minima) over their eight neighbours, best
-// first. The poles are candidates against the nearest ring.
+// first, and within a third of the grid range of the best. The poles are
+// candidates against the nearest ring.
 func (g *denseGrid) candidates(s float64, k int) []point {
 	n := g.nlon
 	nr := len(g.colat)
@@ -181,16 +182,44 @@ func (g *denseGrid) candidates(s float64, k int) []point {
 				}
 			}
 			if best {
-				cs = append(cs, cand{v, point{g.colat[i], 2 * math.Pi * float64(j) / float64(n)}})
+				// Rank by the peak of parabolas through the neighbours
+				// along the ring and along the meridian, a far better
+				// estimate of a narrow peak than the sample itself.
+				est := v + parabolaGain(at(i, j-1), v, at(i, j+1))
+				if i > 1 && i < nr-2 {
+					est += parabolaGain(at(i-1, j), v, at(i+1, j))
+				}
+				cs = append(cs, cand{est, point{g.colat[i], 2 * math.Pi * float64(j) / float64(n)}})
 			}
 		}
 	}
 	sort.Slice(cs, func(a, b int) bool { return cs[a].v > cs[b].v })
+	// A peak narrower than the grid may sample low: keep every candidate
+	// within a third of the grid's range of the best one (at least two, at
+	// most k).
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range g.v {
+		lo, hi = math.Min(lo, s*v), math.Max(hi, s*v)
+	}
 	var out []point
 	for q := 0; q < len(cs) && q < k; q++ {
+		if q >= 2 && cs[q].v < cs[0].v-(hi-lo)/3 {
+			break
+		}
 		out = append(out, cs[q].p)
 	}
 	return out
+}
+
+// parabolaGain returns how far the peak of the parabola through three
+// equally spaced samples (a, b, c), b the largest, rises above b:
+// (a - c)^2 / (8 (2b - a - c)).
+func parabolaGain(a, b, c float64) float64 {
+	d := 2*b - a - c
+	if d <= 0 {
+		return 0
+	}
+	return (a - c) * (a - c) / (8 * d)
 }
 
 // refine climbs from start to the nearest local maximum of s*f by Newton's
@@ -272,7 +301,7 @@ type extremum struct {
 func extrema(c *sh.Coeffs, g *denseGrid) (max, min extremum) {
 	ev := sh.NewEvaluator(c)
 	maxStep := math.Pi / float64(len(g.colat)-1)
-	const starts = 4
+	const starts = 12
 	best := func(s float64) extremum {
 		e := extremum{value: math.Inf(-1)}
 		for _, p := range g.candidates(s, starts) {

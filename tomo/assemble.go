@@ -201,6 +201,16 @@ func (b *builder) build() (*Grid, error) {
 	}
 	g := &Grid{}
 
+	// Latitude range first: a swapped column shows here.
+	for id, v := range b.lat.vals {
+		if v < -90 || v > 90 {
+			hint := ""
+			if v >= -180 && v <= 360 {
+				hint = " (if latitude and longitude are swapped, name the columns: a '# columns: lat lon ...' line in a text file, or the CSV header)"
+			}
+			return nil, inputErr(b.file, b.line(b.lat.first[id]), "latitude %g is outside -90..90 degrees%s", v, hint)
+		}
+	}
 	// Longitudes: range, convention, wrap to [0, 360).
 	rawLon := b.lon.vals
 	negRec, overRec := -1, -1
@@ -249,11 +259,6 @@ func (b *builder) build() (*Grid, error) {
 	g.Lon = lon
 
 	// Latitudes.
-	for id, v := range b.lat.vals {
-		if v < -90 || v > 90 {
-			return nil, inputErr(b.file, b.line(b.lat.first[id]), "latitude %g is outside -90..90 degrees", v)
-		}
-	}
 	latAx := clusterAxis(b.lat.vals, b.lat.first)
 	lat, err := b.regular(latAx, "latitude", false)
 	if err != nil {
@@ -263,6 +268,9 @@ func (b *builder) build() (*Grid, error) {
 		lat[j] = math.Max(-90, math.Min(90, v))
 	}
 	g.Lat = lat
+	if lv := b.lat.vals; len(lv) > 1 && lv[0] > lv[len(lv)-1] {
+		g.Notes = append(g.Notes, "latitudes run from north to south in the file; stored from south to north")
+	}
 	g.Reg = registration(lat)
 	dlat := g.DLat()
 	south, north := lat[0], lat[len(lat)-1]

@@ -49,7 +49,8 @@ func splitHeader(h string) (name, units string) {
 type columnPlan struct {
 	lon, lat, vert, value int // column indices; vert is -1 without a depth axis
 	radius                bool
-	explicit              bool // the vertical role came from a name or option
+	explicit              bool    // the vertical role came from a name or option
+	vertPerKm             float64 // units of the vertical column per km (1, or 1000 for metres)
 	name, units           string
 }
 
@@ -57,7 +58,7 @@ type columnPlan struct {
 // the vertical role chosen in opts. It returns an error message (without
 // location) when the columns cannot be assigned.
 func planColumns(titles []string, opts ReadOptions) (columnPlan, error) {
-	p := columnPlan{lon: -1, lat: -1, vert: -1, value: -1}
+	p := columnPlan{lon: -1, lat: -1, vert: -1, value: -1, vertPerKm: 1}
 	names := make([]string, len(titles))
 	units := make([]string, len(titles))
 	for c, t := range titles {
@@ -120,6 +121,15 @@ func planColumns(titles []string, opts ReadOptions) (columnPlan, error) {
 			p.explicit = r == roleRadius || r == roleDepth
 		default:
 			return p, fmt.Errorf("vertical coordinate %q not understood: use depth or radius", opts.Vertical)
+		}
+	}
+	if p.vert >= 0 {
+		switch strings.ToLower(units[p.vert]) {
+		case "", "km", "kilometre", "kilometres", "kilometer", "kilometers":
+		case "m", "metre", "metres", "meter", "meters":
+			p.vertPerKm = 1000
+		default:
+			return p, fmt.Errorf("column %q: units %q of the depth or radius not understood; use km or m", titles[p.vert], units[p.vert])
 		}
 	}
 	used := func(c int) bool { return c == p.lon || c == p.lat || c == p.vert }

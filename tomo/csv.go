@@ -134,6 +134,7 @@ func ReadCSV(name string, data []byte, opts ReadOptions) (*Grid, error) {
 			if dep, err = coordField(name, line, []byte(strings.TrimSpace(rec[plan.vert])), plan.vert, vertName); err != nil {
 				return nil, err
 			}
+			dep /= plan.vertPerKm
 		}
 		v, err := valueField(name, line, []byte(strings.TrimSpace(rec[plan.value])), plan.value)
 		if err != nil {

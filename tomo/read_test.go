@@ -484,3 +484,34 @@ func TestReadFileProvenance(t *testing.T) {
 		t.Errorf("Read from a reader: %v", err)
 	}
 }
+
+func TestReadDepthInMetresAndLatitudeOrder(t *testing.T) {
+	// Rows written north to south, depth in metres (1 km = 1000 m).
+	var b strings.Builder
+	b.WriteString("lon,lat,depth (m),dvs\n")
+	for _, d := range []float64{2800, 2891} {
+		for _, la := range []float64{45, -45} {
+			for _, lo := range steps(0, 90, 4) {
+				fmt.Fprintf(&b, "%g,%g,%g,%g\n", lo, la, d*1000, field(lo, la, d))
+			}
+		}
+	}
+	g, err := ReadCSV("m.csv", []byte(b.String()), ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(g.Depth, []float64{2800, 2891}) || !slices.Equal(g.Lat, []float64{-45, 45}) {
+		t.Errorf("Depth %v Lat %v", g.Depth, g.Lat)
+	}
+	checkField(t, g, func(l float64) float64 { return l })
+	if !containsAny(g.Notes, "latitudes run from north to south in the file") {
+		t.Errorf("Notes = %q", g.Notes)
+	}
+	if _, err := ReadCSV("f.csv", []byte("lon,lat,depth (furlong),v\n0,0,1,1\n"), ReadOptions{}); err == nil || !strings.Contains(err.Error(), `units "furlong" of the depth or radius not understood`) {
+		t.Errorf("unknown depth units: %v", err)
+	}
+	// Swapped columns get a hint.
+	if _, err := ReadText("s.txt", []byte("45 200 1\n"), ReadOptions{}); err == nil || !strings.Contains(err.Error(), "swapped") {
+		t.Errorf("swapped columns: %v", err)
+	}
+}

@@ -139,6 +139,7 @@ func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 			if dep, err = coordField(name, lineNo, fields[plan.vert], plan.vert, map[bool]string{true: "radius", false: "depth"}[plan.radius]); err != nil {
 				return nil, err
 			}
+			dep /= plan.vertPerKm
 		}
 		v, err := valueField(name, lineNo, fields[plan.value], plan.value)
 		if err != nil {
@@ -185,9 +186,9 @@ func textPlan(nf int, titles []string, haveHeader bool, opts ReadOptions) (colum
 	}
 	switch nf {
 	case 3:
-		return columnPlan{lon: 0, lat: 1, vert: -1, value: 2}, nil
+		return columnPlan{lon: 0, lat: 1, vert: -1, value: 2, vertPerKm: 1}, nil
 	case 4:
-		p := columnPlan{lon: 0, lat: 1, vert: 2, value: 3}
+		p := columnPlan{lon: 0, lat: 1, vert: 2, value: 3, vertPerKm: 1}
 		switch opts.Vertical {
 		case "radius":
 			p.radius, p.explicit = true, true

@@ -486,7 +486,7 @@ func (r *ncReader) lonOrder(name string, lon []float64) ([]int, error) {
 	lo, hi := lon[idx[0]], lon[idx[len(idx)-1]]
 	step := (hi - lo) / float64(len(idx)-1)
 	span := hi - lo
-	if math.Abs(span-360) <= 1e-6*step && len(idx) > 2 {
+	if math.Abs(span-360) <= 1e-4*step && len(idx) > 2 { // tolerance as in even
 		idx = idx[:len(idx)-1] // the last column repeats the first
 	} else if span >= 360 {
 		return nil, r.fail(name, "longitudes span %g degrees (%g to %g), more than a full circle", span, lo, hi)

@@ -8,6 +8,8 @@ import (
 	"testing"
 
 	"github.com/ctessum/geom/encoding/geojson"
+
+	"cmbflux/flux/contour"
 )
 
 const deg = math.Pi / 180
@@ -277,5 +279,59 @@ func TestOutlineErrors(t *testing.T) {
 		} else if !strings.Contains(err.Error(), "outline 0") {
 			t.Errorf("%s: error %q does not name the outline", name, err)
 		}
+	}
+}
+
+// Rings as flux/contour makes them from a gridded field, with vertices on
+// the grid meridian at 180 degrees: a field that is the angular distance
+// from (180, 0) has the region "below 25 degrees" as a cap of radius 25,
+// whose area is 2 pi R^2 (1 - cos 25) (cap formula; the contour follows the
+// circle to the grid's accuracy).
+func TestOutlineFromContour(t *testing.T) {
+	const nlon, nlat, r = 360, 181, 3480.0
+	f := contour.Field{Lon0: 0, NLon: nlon}
+	for i := range nlat {
+		f.Lat = append(f.Lat, 90-float64(i))
+	}
+	for _, lat := range f.Lat {
+		for j := range nlon {
+			lon := float64(j) * 360 / nlon
+			// great-circle distance from (180, 0) in degrees
+			c := math.Cos(lat*deg) * math.Cos((lon-180)*deg)
+			f.Values = append(f.Values, math.Acos(math.Max(-1, math.Min(1, c)))/deg)
+		}
+	}
+	rings, err := contour.Below(f, 25)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, _ := writeOne(t, rings, nil)
+	polys := checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 2 {
+		t.Fatalf("%d polygons, want the cap cut in two at the antimeridian", len(polys))
+	}
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), capArea(r, 25)); e > 1e-3 {
+		t.Errorf("area %v, cap formula %v (relative error %v)", c.Features[0].Props[PropAreaKm2], capArea(r, 25), e)
+	}
+}
+
+// Vertices exactly on the antimeridian, and a ring that only touches it.
+func TestOutlineVerticesOnAntimeridian(t *testing.T) {
+	square := [][2]float64{{170, 0}, {180, 0}, {190, 0}, {190, 10}, {180, 10}, {170, 10}}
+	c, _ := writeOne(t, [][][2]float64{square}, nil)
+	polys := checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 2 {
+		t.Fatalf("%d polygons, want 2", len(polys))
+	}
+	for _, p := range polys {
+		if len(p[0]) != 5 {
+			t.Errorf("piece %v, want a closed rectangle of 5 positions", p[0])
+		}
+	}
+	touch := [][2]float64{{170, 0}, {180, 5}, {170, 10}}
+	c, _ = writeOne(t, [][][2]float64{touch}, nil)
+	polys = checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 1 || len(polys[0][0]) != 4 {
+		t.Fatalf("touching triangle became %v", polys)
 	}
 }

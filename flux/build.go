@@ -113,6 +113,8 @@ type Result struct {
 	// Diagnostics summarises the result at the edge (degrees, mW/m^2, TW).
 	Diagnostics Diagnostics
 	// Warnings lists settings that could waste a simulation; print them.
+	// Each starts with a short class and a colon ("negative heat flux: ..."),
+	// by which a sweep may group them.
 	Warnings []string
 }
 
@@ -156,13 +158,13 @@ func (p *Pattern) WithPhysical(ph Physical, ref Reference) (*Result, error) {
 	d.TemperatureMax = p.max.value / ph.DlnVsDT
 	d.TemperatureMin = p.min.value / ph.DlnVsDT
 	if ph.Thickness < 1e3 || ph.Thickness > 1e6 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("boundary-layer thickness %.4g km is outside 1-1000 km (about 200 km is usual): check that it was given in metres", ph.Thickness/1e3))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("units: boundary-layer thickness %.4g km is outside 1-1000 km (about 200 km is usual): check that it was given in metres", ph.Thickness/1e3))
 	}
 	if ph.Conductivity > 50 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("mantle conductivity %.4g W/m/K is far above lowermost-mantle values (5-12 W/m/K): is it the core's?", ph.Conductivity))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("units: mantle conductivity %.4g W/m/K is far above lowermost-mantle values (5-12 W/m/K): is it the core's?", ph.Conductivity))
 	}
 	if ph.DlnVsDT < -1e-3 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("dlnVs/dT = %.4g /K is large in magnitude (about -1e-5 to -4e-5 /K is usual): was it given in percent per kelvin?", ph.DlnVsDT))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("units: dlnVs/dT = %.4g /K is large in magnitude (about -1e-5 to -4e-5 /K is usual): was it given in percent per kelvin?", ph.DlnVsDT))
 	}
 	return r, nil
 }

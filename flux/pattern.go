@@ -118,9 +118,9 @@ func NewPattern(dlnvs *sh.Coeffs, opt *PatternOptions) (*Pattern, error) {
 	}
 	var warn []string
 	if o.LMax > in.LMax {
-		warn = append(warn, fmt.Sprintf("lmax %d is above the input's degree %d: degrees %d-%d are zero, so the boundary condition carries no more detail than the input; lower lmax to %d or refit the layer to a higher degree", o.LMax, in.LMax, in.LMax+1, o.LMax, in.LMax))
+		warn = append(warn, fmt.Sprintf("lmax above the input: lmax %d is above the input's degree %d: degrees %d-%d are zero, so the boundary condition carries no more detail than the input; lower lmax to %d or refit the layer to a higher degree", o.LMax, in.LMax, in.LMax+1, o.LMax, in.LMax))
 	} else if o.LMax > o.ResolvedLMax {
-		warn = append(warn, fmt.Sprintf("lmax %d is above degree %d, the highest the input grid resolves: degrees above %d are fitting artefacts, not structure; lower lmax or taper them", o.LMax, o.ResolvedLMax, o.ResolvedLMax))
+		warn = append(warn, fmt.Sprintf("lmax above the resolution: lmax %d is above degree %d, the highest the input grid resolves: degrees above %d are fitting artefacts, not structure; lower lmax or taper them", o.LMax, o.ResolvedLMax, o.ResolvedLMax))
 	}
 	return newPattern(g, in, o, warn)
 }

@@ -165,7 +165,7 @@ func TestUnitWarnings(t *testing.T) {
 	// percent per kelvin as a fraction per kelvin.
 	p, _ := Ideal(nil, Term{L: 2, M: 0, Weight: 1})
 	r, _ := p.WithQStar(1, Reference{QMean: 80})
-	if !hasWarning(r, "units") {
+	if !hasWarning(r, "units:") {
 		t.Errorf("q_mean 80 W/m^2: no unit warning in %q", r.Warnings)
 	}
 	r, _ = p.WithPhysical(Physical{Conductivity: 10, Thickness: 200, DlnVsDT: -2e-5}, Reference{QMean: 0.08})

@@ -642,13 +642,23 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 		lmax = maxL
 	}
 	c := sh.NewCoeffs(lmax, conv)
-	seen := map[[2]int]int{} // (l, m) -> index in p.rows
+	// pos[Index(l, m)] and neg[Index(l, m)] hold 1 + the row of (l, m)
+	// and (l, -m), or 0.
+	pos := make([]int32, sh.NumCoeffs(lmax))
+	var neg []int32
+	if complexForm {
+		neg = make([]int32, sh.NumCoeffs(lmax))
+	}
 	for k, r := range p.rows {
-		key := [2]int{r.l, r.m}
-		if first, dup := seen[key]; dup {
-			return nil, inputErr(name, r.line, "duplicate (l, m) = (%d, %d), first at line %d", r.l, r.m, p.rows[first].line)
+		at := pos
+		if r.m < 0 {
+			at = neg
 		}
-		seen[key] = k
+		i := sh.Index(r.l, abs(r.m))
+		if first := at[i]; first > 0 {
+			return nil, inputErr(name, r.line, "duplicate (l, m) = (%d, %d), first at line %d", r.l, r.m, p.rows[first-1].line)
+		}
+		at[i] = int32(k + 1)
 	}
 	for _, r := range p.rows {
 		i := sh.Index(r.l, abs(r.m))
@@ -661,13 +671,13 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 			// c_lm = (C - i S)/sqrt(2) (see toComplex).
 			c.C[i], c.S[i] = r.a*math.Sqrt2, -r.b*math.Sqrt2
 		default:
-			pos, ok := seen[[2]int{r.l, -r.m}]
-			if !ok {
+			k := pos[i] - 1
+			if k < 0 {
 				// Only the negative order is given: c_lm = conj(c_l,-m).
 				c.C[i], c.S[i] = r.a*math.Sqrt2, r.b*math.Sqrt2
 				continue
 			}
-			if q := p.rows[pos]; q.a != r.a || q.b != -r.b {
+			if q := p.rows[k]; q.a != r.a || q.b != -r.b {
 				return nil, inputErr(name, r.line, "c_%d,%d = (%v, %v) is not the conjugate of c_%d,%d = (%v, %v) at line %d, as a real field needs", r.l, r.m, r.a, r.b, r.l, -r.m, q.a, q.b, q.line)
 			}
 		}
@@ -681,9 +691,8 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 		}
 		var ms []int
 		for m := 0; m <= l; m++ {
-			_, pos := seen[[2]int{l, m}]
-			_, neg := seen[[2]int{l, -m}]
-			if !pos && !(complexForm && neg) {
+			i := sh.Index(l, m)
+			if pos[i] == 0 && !(complexForm && neg[i] > 0) {
 				ms = append(ms, m)
 			}
 		}

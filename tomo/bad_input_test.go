@@ -36,6 +36,8 @@ func TestBadInput(t *testing.T) {
 		{"two-columns.txt", 1, []string{"2 fields", "3 columns (lon lat value) or 4"}},
 		{"inconsistent-spacing.txt", 5, []string{"latitude step from -40 to 10 is 50, but the smallest step is 30"}},
 		{"missing-column.txt", 4, []string{"longitudes jump from 60 to 120", "1 longitude value(s) are missing"}},
+		{"regional-longitudes.txt", 0, []string{"longitudes cover 0..90 in 4 columns at spacing 30", "a global grid at this spacing has 12 columns"}},
+		{"incomplete-depth.csv", 0, []string{"1 of 8 points are missing, the first at lon 180, lat 45, depth 3000 km", "lon-lat-depth combination"}},
 		{"single-latitude.txt", 1, []string{"every point has latitude 10", "at least two latitudes"}},
 		{"negative-depth.txt", 1, []string{"depth -5 km is outside 0..6371"}},
 		{"radius-as-depth.txt", 1, []string{"looks like a radius"}},

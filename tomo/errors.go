@@ -26,7 +26,13 @@ func (e *InputError) Error() string {
 		loc = fmt.Sprintf("%s:%d", loc, e.Line)
 	}
 	if e.Var != "" {
-		loc = fmt.Sprintf("%s: variable %s", loc, e.Var)
+		if loc != "" {
+			loc += ": "
+		}
+		loc += "variable " + e.Var
+	}
+	if loc == "" {
+		return e.Err.Error()
 	}
 	return loc + ": " + e.Err.Error()
 }

@@ -257,6 +257,9 @@ func (r *ncReader) read() (*Grid, error) {
 		zV = v
 	}
 	for d, dn := range val.Dims {
+		if slices.Index(val.Dims, dn) != d {
+			return nil, r.fail(val.Name, "dimension %s appears twice in (%s); a grid needs each dimension once", dn, strings.Join(val.Dims, ", "))
+		}
 		switch {
 		case dn == lonV.Dims[0]:
 			ilon = d

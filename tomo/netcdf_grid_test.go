@@ -263,6 +263,12 @@ data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
  double a(lat, lon) ;
 data: a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
 			want: []string{"variable lon", "curvilinear grid", "resample"}},
+		{name: "repeated dimension", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
+			want: []string{"variable a", "dimension lon appears twice"}},
 		{name: "valid_range with valid_min", cdl: head + `
  double lon(lon) ; lon:units = "degrees_east" ;
  double lat(lat) ; lat:units = "degrees_north" ;

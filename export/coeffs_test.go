@@ -323,3 +323,36 @@ func TestReadCoeffJSONErrors(t *testing.T) {
 		}
 	}
 }
+
+// CSV errors carry the line in the file, header lines included.
+func TestReadCoeffCSVErrors(t *testing.T) {
+	var buf bytes.Buffer
+	WriteCoeffsCSV(&buf, sh.NewCoeffs(2, sh.Canonical), nil, nil)
+	good := buf.String()
+	lines := strings.Split(good, "\n")
+	heading := 0
+	for i, l := range lines {
+		if l == "l,m,cos,sin" {
+			heading = i + 1
+		}
+	}
+	if heading == 0 {
+		t.Fatal("no heading record")
+	}
+	for _, tc := range []struct{ in, want string }{
+		{strings.Replace(good, "\n2,1,0,0\n", "\n2,1,0,0\n2,1,1,0\n", 1), "c.csv:" + strconv.Itoa(heading+6) + ": duplicate (l, m) = (2, 1), first at line " + strconv.Itoa(heading+5)},
+		{strings.Replace(good, "l,m,cos,sin", "l,m,re,im", 1), "c.csv:" + strconv.Itoa(heading) + `: heading "l,m,re,im" does not match`},
+		{strings.Replace(good, "\n1,0,0,0\n", "\n1,0,\"0,0\n", 1), "c.csv:"},
+		{strings.Replace(good, "\n1,1,0,0\n", "\n1,1,0,zero\n", 1), "c.csv:" + strconv.Itoa(heading+3) + `: value 2: "zero" is not a number`},
+	} {
+		_, err := ReadCoeffs(strings.NewReader(tc.in), "c.csv", nil)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("error %v, want %q", err, tc.want)
+		}
+	}
+	// Converting to a convention that cannot hold the degree is an error,
+	// not an infinite coefficient (flux/sh limits unnormalized degrees).
+	if err := WriteCoeffsText(&bytes.Buffer{}, randomCoeffs(400, sh.Canonical, 1), nil, &CoeffOptions{Conv: sh.Convention{Norm: sh.Unnormalized}}); err == nil {
+		t.Error("unnormalized coefficients of degree 400 were written")
+	}
+}

@@ -632,9 +632,6 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 		}
 		maxL = max(maxL, r.l)
 	}
-	if wantRows >= 0 && wantRows != len(p.rows) {
-		return nil, inputErr(name, p.header["rows"].line, "header rows = %d but the file has %d data rows", wantRows, len(p.rows))
-	}
 	if len(p.rows) == 0 {
 		return nil, &InputError{File: name, Err: errors.New("no coefficient rows")}
 	}
@@ -659,6 +656,9 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 			return nil, inputErr(name, r.line, "duplicate (l, m) = (%d, %d), first at line %d", r.l, r.m, p.rows[first-1].line)
 		}
 		at[i] = int32(k + 1)
+	}
+	if wantRows >= 0 && wantRows != len(p.rows) {
+		return nil, inputErr(name, p.header["rows"].line, "header rows = %d but the file has %d data rows", wantRows, len(p.rows))
 	}
 	for _, r := range p.rows {
 		i := sh.Index(r.l, abs(r.m))

@@ -50,6 +50,7 @@ func demoMap() *Map {
 		Title:    "CMB heat flux, invented demo scenario, q* = 1.0",
 		Subtitle: "lmax 12, linear mapping, mean 65 mW/m²",
 		Levels:   []Level{{Value: 40, Label: "q_ad"}},
+		Hatches:  []Hatch{{Below: 40, Label: "below q_ad"}},
 		Grid:     demoGrid(),
 		Center:   65,
 		Label:    "heat flux q",

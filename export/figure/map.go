@@ -39,6 +39,20 @@ type Outline struct {
 	Style OutlineStyle
 }
 
+// Hatch marks the part of a map where the field is below a value with fine
+// diagonal lines drawn into the raster, light on dark colours and dark on
+// light ones, so that the region shows in grey print and for any colour
+// vision, not only through its colour. The first hatch of a map is drawn
+// rising to the right, the second falling, so that two regions nested in
+// each other (below the adiabat, below zero) appear as single and cross
+// hatching.
+type Hatch struct {
+	// Below is the value under which the map is hatched.
+	Below float64
+	// Label names the region in the legend, such as "below q_ad".
+	Label string
+}
+
 // Level is a reference value marked on a map's colour bar.
 type Level struct {
 	// Value is the marked value, in the map's units.
@@ -93,6 +107,9 @@ type Map struct {
 	// Levels are reference values marked on the colour bar, such as the
 	// adiabatic heat flux or zero.
 	Levels []Level
+	// Hatches mark where the field is below given values; at most two
+	// are drawn.
+	Hatches []Hatch
 	// Outlines are drawn over the field, in order.
 	Outlines []Outline
 	// Markers are drawn over the field, after the extrema.
@@ -252,17 +269,46 @@ func (m *Map) sample(l *mapLayout) (*sampled, error) {
 	return s, nil
 }
 
-// image colours the samples; pixels outside the map stay transparent.
-func (s *sampled) image(l *mapLayout, sc Scale) *image.RGBA {
+// image colours the samples, hatched below the given values; pixels
+// outside the map stay transparent.
+func (s *sampled) image(l *mapLayout, sc Scale, hatches []Hatch) *image.RGBA {
 	img := image.NewRGBA(image.Rect(0, 0, l.nx, l.ny))
 	for i, v := range s.vals {
 		if math.IsInf(v, 1) {
 			continue
 		}
 		c := sc.Color(v)
+		for k, h := range hatches[:min(len(hatches), 2)] {
+			if v < h.Below && onHatch(k, i%l.nx, i/l.nx) {
+				c = hatchInk(c)
+			}
+		}
 		img.Pix[4*i], img.Pix[4*i+1], img.Pix[4*i+2], img.Pix[4*i+3] = c.R, c.G, c.B, c.A
 	}
 	return img
+}
+
+// hatchPeriod is the spacing of hatch lines in pixels along a row.
+const hatchPeriod = 7
+
+// onHatch reports whether pixel (col, row) lies on a line of hatch k:
+// rising to the right for k = 0, falling for k = 1.
+func onHatch(k, col, row int) bool {
+	if k == 0 {
+		return (col+row)%hatchPeriod == 0
+	}
+	return ((col-row)%hatchPeriod+hatchPeriod)%hatchPeriod == 0
+}
+
+// hatchInk returns the colour of a hatch line over c: c mixed two thirds
+// of the way to white when c is dark, to near black when it is light.
+func hatchInk(c color.RGBA) color.RGBA {
+	mix := func(a, b uint8) uint8 { return uint8((int(a) + 2*int(b)) / 3) }
+	t := uint8(0x18)
+	if 299*int(c.R)+587*int(c.G)+114*int(c.B) < 128*1000 {
+		t = 0xff
+	}
+	return color.RGBA{R: mix(c.R, t), G: mix(c.G, t), B: mix(c.B, t), A: 0xff}
 }
 
 // checkScale reports a centre or half range that cannot be used.
@@ -306,11 +352,11 @@ func (m *Map) write(out io.Writer, svg bool) error {
 		return err
 	}
 	sc := autoScale(m.Center, m.HalfRange, s)
-	img := s.image(l, sc)
+	img := s.image(l, sc, m.Hatches)
 	return render(out, svg, w, h, func(dc draw.Canvas) error {
 		m.drawBody(dc, l, img, s, true)
 		drawHeader(dc, float64(w), float64(h), m.Title, m.Subtitle)
-		bar := colourBar{label: m.Label, units: m.Units, centerLabel: m.CenterLabel, levels: m.Levels, outlines: m.Outlines, noData: s.noData}
+		bar := colourBar{label: m.Label, units: m.Units, centerLabel: m.CenterLabel, levels: m.Levels, outlines: m.Outlines, hatches: m.Hatches, noData: s.noData}
 		bar.draw(dc, float64(w), float64(l.y0)-22, sc)
 		return nil
 	})
@@ -594,6 +640,7 @@ type colourBar struct {
 	label, units, centerLabel string
 	levels                    []Level
 	outlines                  []Outline
+	hatches                   []Hatch
 	noData                    bool
 }
 
@@ -601,7 +648,7 @@ type colourBar struct {
 func (cb *colourBar) draw(dc draw.Canvas, width, top float64, sc Scale) {
 	const barH = 13.0
 	barW := math.Min(480, width*0.55)
-	hasLegend := cb.noData
+	hasLegend := cb.noData || len(cb.hatches) > 0
 	for _, o := range cb.outlines {
 		if o.Label != "" {
 			hasLegend = true
@@ -686,6 +733,27 @@ func (cb *colourBar) draw(dc draw.Canvas, width, top float64, sc Scale) {
 		ink := draw.LineStyle{Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 1.5, Dashes: outlineDashes(o.Style)}
 		dc.StrokeLines(ink, seg)
 		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, o.Label)
+		y -= 17
+	}
+	for k, h := range cb.hatches[:min(len(cb.hatches), 2)] {
+		// A swatch of the low end of the scale under hatch k.
+		sw := image.NewRGBA(image.Rect(0, 0, 14, 12))
+		base := Diverging(-0.75)
+		for r := range 12 {
+			for c := range 14 {
+				col := base
+				if onHatch(k, c, r) {
+					col = hatchInk(base)
+				}
+				sw.SetRGBA(c, r, col)
+			}
+		}
+		dc.DrawImage(vg.Rectangle{Min: vg.Point{X: vg.Length(x + 8), Y: vg.Length(y - 6)}, Max: vg.Point{X: vg.Length(x + 22), Y: vg.Length(y + 6)}}, sw)
+		label := h.Label
+		if label == "" {
+			label = "below " + formatValue(h.Below)
+		}
+		dc.FillText(ls, vg.Point{X: vg.Length(x + 38), Y: vg.Length(y)}, label)
 		y -= 17
 	}
 	if cb.noData {

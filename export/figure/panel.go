@@ -18,7 +18,7 @@ import (
 //
 // From each Map the panel uses the field (Grid or Field), Outlines,
 // Markers, NoExtrema and Title (as the map's caption); the projection, the
-// scale, the label, units and levels are the panel's.
+// scale, the label, units, levels and hatches are the panel's.
 type Panel struct {
 	// Title and Subtitle are written above the maps.
 	Title, Subtitle string
@@ -41,6 +41,9 @@ type Panel struct {
 	Label, Units string
 	// Levels are reference values marked on the colour bar.
 	Levels []Level
+	// Hatches mark, in every map, where the field is below given values;
+	// at most two are drawn.
+	Hatches []Hatch
 	// Width is the width in pixels (points in SVG); zero means 900.
 	// Height follows from the number of rows unless set.
 	Width, Height int
@@ -129,7 +132,7 @@ func (p *Panel) write(out io.Writer, svg bool) error {
 	sc := autoScale(p.Center, p.HalfRange, ss...)
 	imgs := make([]image.Image, len(p.Maps))
 	for i := range p.Maps {
-		imgs[i] = ss[i].image(ls[i], sc)
+		imgs[i] = ss[i].image(ls[i], sc, p.Hatches)
 	}
 	return render(out, svg, w, h, func(dc draw.Canvas) error {
 		drawHeader(dc, float64(w), float64(h), p.Title, p.Subtitle)
@@ -141,7 +144,7 @@ func (p *Panel) write(out io.Writer, svg bool) error {
 					vg.Point{X: vg.Length(l.cx), Y: vg.Length(float64(l.y0+l.ny) + 5)}, m.Title)
 			}
 		}
-		bar := colourBar{label: p.Label, units: p.Units, centerLabel: p.CenterLabel, levels: p.Levels, outlines: outlines, noData: noData}
+		bar := colourBar{label: p.Label, units: p.Units, centerLabel: p.CenterLabel, levels: p.Levels, outlines: outlines, hatches: p.Hatches, noData: noData}
 		bar.draw(dc, float64(w), mapBottomBand-22, sc)
 		return nil
 	})

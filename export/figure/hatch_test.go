@@ -1,0 +1,60 @@
+package figure
+
+import (
+	"math"
+	"testing"
+)
+
+// TestHatch checks that hatching changes exactly the pixels on hatch
+// lines where the field is below the value, and that the hatch ink stands
+// out from every colour of the scale by at least 25 in CIELAB lightness
+// (an L* difference of 25 is plainly visible; a just noticeable difference
+// is about 1, Sharma 2003, from memory).
+func TestHatch(t *testing.T) {
+	m := &Map{Field: demoField}
+	l, err := fitMap(m.Projection, 0, 0, 400, 200)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := m.sample(l)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := Scale{Center: 65, HalfRange: 40}
+	hs := []Hatch{{Below: 45}, {Below: 30}}
+	img := s.image(l, sc, hs)
+	var hatched, plain int
+	for i, v := range s.vals {
+		if math.IsInf(v, 1) {
+			if img.Pix[4*i+3] != 0 {
+				t.Fatalf("pixel %d outside the map is not transparent", i)
+			}
+			continue
+		}
+		want := sc.Color(v)
+		c, r := i%l.nx, i/l.nx
+		for k, h := range hs {
+			if v < h.Below && onHatch(k, c, r) {
+				want = hatchInk(want)
+			}
+		}
+		got := img.RGBAAt(c, r)
+		if got != want {
+			t.Fatalf("pixel (%d, %d), value %v: %v, want %v", c, r, v, got, want)
+		}
+		if got != sc.Color(v) {
+			hatched++
+		} else {
+			plain++
+		}
+	}
+	if hatched < 100 || plain < 1000 {
+		t.Errorf("%d hatched and %d plain pixels", hatched, plain)
+	}
+	for i := -50; i <= 50; i++ {
+		c := Diverging(float64(i) / 50)
+		if d := math.Abs(labOf(c).L - labOf(hatchInk(c)).L); d < 25 {
+			t.Errorf("t = %v: hatch ink only %.1f L* from the colour", float64(i)/50, d)
+		}
+	}
+}

@@ -685,9 +685,15 @@ func (r *ncReader) missing(v *netcdf.Var) (*ncMissing, error) {
 	}
 	if sc != nil {
 		m.scale = sc[0]
+		if m.scale == 0 || math.IsNaN(m.scale) || math.IsInf(m.scale, 0) {
+			return nil, r.fail(v.Name, "scale_factor %g would make every value %s; it must be finite and non-zero (CF-1.8 section 8.1)", m.scale, "meaningless")
+		}
 	}
 	if off != nil {
 		m.offset = off[0]
+		if math.IsNaN(m.offset) || math.IsInf(m.offset, 0) {
+			return nil, r.fail(v.Name, "add_offset %g must be finite (CF-1.8 section 8.1)", m.offset)
+		}
 	}
 	// Valid-range attributes of the unpacked type (that of scale_factor
 	// when it differs from the variable's) are in unpacked units; the

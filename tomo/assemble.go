@@ -271,15 +271,13 @@ func (b *builder) build() (*Grid, error) {
 	if lv := b.lat.vals; len(lv) > 1 && lv[0] > lv[len(lv)-1] {
 		g.Notes = append(g.Notes, "latitudes run from north to south in the file; stored from south to north")
 	}
-	g.Reg = registration(lat)
+	g.Reg = registration(g.Lon, lat)
 	dlat := g.DLat()
-	south, north := lat[0], lat[len(lat)-1]
-	if g.Reg == CellRegistered {
-		south, north = south-dlat/2, north+dlat/2
-	}
+	south, north := math.Max(-90, lat[0]-dlat/2), math.Min(90, lat[len(lat)-1]+dlat/2)
 	if south > -90+1e-6 || north < 90-1e-6 {
 		g.Warnings = append(g.Warnings, fmt.Sprintf(
-			"latitudes cover only %g..%g degrees (%s-registered): the polar caps beyond are treated as missing data", south, north, g.Reg))
+			"latitudes %g..%g cover only %g..%g degrees (each point standing for half a step either side): the polar caps beyond are treated as missing data",
+			lat[0], lat[len(lat)-1], south, north))
 	}
 
 	// Depths.
@@ -455,20 +453,27 @@ func (b *builder) depthText(r int) string {
 }
 
 // registration applies the rule documented on ReadText to ascending,
-// evenly spaced latitudes: cell-registered when every latitude lies half a
-// step from the poles' lattice, -90 + (j + 1/2)*dlat, and so no point lies
-// on a pole; node-registered otherwise.
-func registration(lat []float64) Registration {
-	if len(lat) < 2 {
+// evenly spaced latitudes and longitudes: cell-registered when every
+// latitude lies half a step from the poles' lattice, -90 + (j + 1/2)*dlat
+// (so that no point lies on a pole), and every longitude half a step from
+// the lattice through 0 E, (i + 1/2)*dlon; node-registered otherwise.
+func registration(lon, lat []float64) Registration {
+	if len(lat) < 2 || len(lon) < 1 {
 		return NodeRegistered
+	}
+	half := func(v, origin, d float64) bool {
+		f := (v - origin) / d
+		return math.Abs(f-math.Floor(f)-0.5) <= spacingTol
 	}
 	d := (lat[len(lat)-1] - lat[0]) / float64(len(lat)-1)
 	for _, v := range lat {
-		if math.Abs(math.Abs(v)-90) < 1e-6 {
+		if math.Abs(math.Abs(v)-90) < 1e-6 || !half(v, -90, d) {
 			return NodeRegistered
 		}
-		f := (v + 90) / d
-		if math.Abs(f-math.Floor(f)-0.5) > spacingTol {
+	}
+	dlon := 360 / float64(len(lon))
+	for _, v := range lon {
+		if !half(v, 0, dlon) {
 			return NodeRegistered
 		}
 	}

@@ -51,7 +51,7 @@ func checkGrid(t *testing.T, g *Grid) {
 	if nvalid == 0 {
 		t.Fatal("no valid point")
 	}
-	if g.Reg != registration(g.Lat) {
+	if g.Reg != registration(g.Lon, g.Lat) {
 		t.Fatalf("Reg %v disagrees with the latitudes %v", g.Reg, g.Lat)
 	}
 	var buf bytes.Buffer

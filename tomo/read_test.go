@@ -120,9 +120,11 @@ func TestReadTextAssembly(t *testing.T) {
 			lon:  steps(45, 90, 4), lat: steps(-67.5, 45, 4), reg: CellRegistered, fileLon: same,
 		},
 		{
+			// Half steps in latitude but whole steps in longitude: the
+			// registration rule says node; Lon and Lat say the rest.
 			name: "-180..180 converted",
 			text: gridText(steps(-180, 90, 4), steps(-45, 90, 2), nil, fieldText, 3),
-			lon:  steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered,
+			lon:  steps(0, 90, 4), lat: []float64{-45, 45}, reg: NodeRegistered,
 			fileLon: func(lon float64) float64 {
 				if lon >= 180 {
 					return lon - 360
@@ -136,7 +138,7 @@ func TestReadTextAssembly(t *testing.T) {
 			text: gridText(steps(0, 90, 5), steps(-45, 90, 2), nil, func(lo, la, d float64) string {
 				return fieldText(math.Mod(lo, 360), la, d)
 			}, 4),
-			lon: steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered, fileLon: same,
+			lon: steps(0, 90, 4), lat: []float64{-45, 45}, reg: NodeRegistered, fileLon: same,
 			notes: []string{"2 points of a repeated seam column"},
 		},
 		{
@@ -147,7 +149,7 @@ func TestReadTextAssembly(t *testing.T) {
 				}
 				return fieldText(lo, la, d)
 			}, 5),
-			lon: steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered,
+			lon: steps(0, 90, 4), lat: []float64{-45, 45}, reg: NodeRegistered,
 			fileLon: func(lon float64) float64 {
 				if lon >= 180 {
 					return lon - 360
@@ -160,12 +162,12 @@ func TestReadTextAssembly(t *testing.T) {
 			name: "partial latitude coverage",
 			text: gridText(steps(0, 120, 3), steps(-60, 30, 5), nil, fieldText, 6),
 			lon:  steps(0, 120, 3), lat: steps(-60, 30, 5), reg: NodeRegistered, fileLon: same,
-			warnings: []string{"latitudes cover only -60..60"},
+			warnings: []string{"latitudes -60..60 cover only -75..75 degrees"},
 		},
 		{
 			name: "depth axis",
 			text: gridText(steps(0, 120, 3), steps(-45, 90, 2), []float64{2891, 2600, 2750}, fieldText, 7),
-			lon:  steps(0, 120, 3), lat: []float64{-45, 45}, depth: []float64{2600, 2750, 2891}, reg: CellRegistered, fileLon: same,
+			lon:  steps(0, 120, 3), lat: []float64{-45, 45}, depth: []float64{2600, 2750, 2891}, reg: NodeRegistered, fileLon: same,
 		},
 		{
 			// Coordinates printed with two decimals on a 1/3-degree lattice.
@@ -179,13 +181,13 @@ func TestReadTextAssembly(t *testing.T) {
 				}
 				return b.String()
 			}(),
-			lon: steps(0, 1.0/3, 1080), lat: []float64{-45, 45}, reg: CellRegistered,
+			lon: steps(0, 1.0/3, 1080), lat: []float64{-45, 45}, reg: NodeRegistered,
 			fileLon: nil,
 		},
 		{
 			name: "columns line reorders",
 			text: "# columns: lat lon dvs\n" + swapFirstTwo(gridText(steps(0, 90, 4), steps(-45, 90, 2), nil, fieldText, 8)),
-			lon:  steps(0, 90, 4), lat: []float64{-45, 45}, reg: CellRegistered, fileLon: same,
+			lon:  steps(0, 90, 4), lat: []float64{-45, 45}, reg: NodeRegistered, fileLon: same,
 		},
 	}
 	for _, tc := range tests {

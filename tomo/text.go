@@ -33,10 +33,13 @@ import (
 // cover the globe at a constant spacing; latitudes must be evenly spaced
 // but may stop short of the poles (with a warning).
 //
-// Registration rule: the grid is cell-registered when every latitude lies
-// at a half step, -90 + (j + 1/2)*dlat, so that no point lies on a pole;
-// node-registered otherwise. (Longitudes are kept as given, so a
-// half-step offset in longitude is carried by Lon itself.)
+// Registration rule: the grid is cell-registered when its coordinates sit
+// at half steps, every latitude at -90 + (j + 1/2)*dlat (so that no point
+// lies on a pole) and every longitude at (i + 1/2)*dlon; node-registered
+// otherwise. Lon and Lat always hold the actual coordinates, so a grid
+// that fits neither pattern exactly (say half steps in latitude but whole
+// steps in longitude, labelled node) is still described correctly by
+// them; consumers should use Lon and Lat rather than infer them from Reg.
 func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	b := &builder{file: name, missing: append([]float64(nil), opts.Missing...)}
 	b.line = func(rec int) int { return textRecordLine(data, rec) }

@@ -115,6 +115,8 @@ type Map struct {
 	// Markers are drawn over the field, after the extrema.
 	Markers []Marker
 	// NoExtrema leaves out the markers of the largest and smallest value.
+	// The extrema marked are those of the grid values for a Grid and of
+	// the values at the pixel centres for a Field.
 	NoExtrema bool
 	// Width and Height are the size in pixels (points in SVG); zero means
 	// 900 x 540.
@@ -625,6 +627,13 @@ func drawMarker(dc draw.Canvas, l *mapLayout, lon, lat float64, label string, ex
 	}
 	tw := sty.Width(label)
 	th := sty.FontExtents().Height
+	// Near the top or bottom of the map (a pole), keep the label inside.
+	if top := vg.Length(l.cy + l.ymax*l.scale); q.Y > top-th {
+		q.Y = top - th
+	}
+	if bottom := vg.Length(l.cy - l.ymax*l.scale); q.Y < bottom+th {
+		q.Y = bottom + th
+	}
 	bx := q.X - 2
 	if sty.XAlign == draw.XRight {
 		bx = q.X - tw - 2

@@ -146,6 +146,19 @@ func seriesStyle(i int) (draw.LineStyle, draw.GlyphStyle) {
 	return ls, gs
 }
 
+// maxGlyphs is the largest number of points of a series drawn with
+// markers; longer series are lines only, so that markers do not merge into
+// a thick band.
+const maxGlyphs = 40
+
+// glyphs returns gs for a series of n points, nil when n > maxGlyphs.
+func glyphs(gs *draw.GlyphStyle, n int) *draw.GlyphStyle {
+	if n > maxGlyphs {
+		return nil
+	}
+	return gs
+}
+
 // runs splits the points into runs of drawable points.
 func runs(xs, ys []float64, ok func(x, y float64) bool) []plotter.XYs {
 	var out []plotter.XYs
@@ -283,7 +296,7 @@ func (s *Spectrum) plot() (*plot.Plot, error) {
 			lmax = len(ser.Y) - 1
 		}
 		ls, gs := seriesStyle(i)
-		if err := addSeries(p, ser.Label, rs, ls, &gs); err != nil {
+		if err := addSeries(p, ser.Label, rs, ls, glyphs(&gs, len(ser.Y)-lmin)); err != nil {
 			return nil, err
 		}
 	}
@@ -367,7 +380,7 @@ func (c *Correlation) plot() (*plot.Plot, error) {
 			lmax = len(ser.Y) - 1
 		}
 		ls, gs := seriesStyle(i)
-		if err := addSeries(p, ser.Label, degreeRuns(ser, lmin, finite), ls, &gs); err != nil {
+		if err := addSeries(p, ser.Label, degreeRuns(ser, lmin, finite), ls, glyphs(&gs, len(ser.Y)-lmin)); err != nil {
 			return nil, err
 		}
 	}
@@ -411,7 +424,7 @@ func (s *Sweep) plots() ([]*plot.Plot, error) {
 			}
 			label := "" // the legend is shared, above the panels
 			ls, gs := seriesStyle(i)
-			if err := addSeries(p, label, runs(ser.X, ser.Y, finite), ls, &gs); err != nil {
+			if err := addSeries(p, label, runs(ser.X, ser.Y, finite), ls, glyphs(&gs, len(ser.X))); err != nil {
 				return nil, err
 			}
 		}

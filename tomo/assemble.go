@@ -296,7 +296,11 @@ func (b *builder) build() (*Grid, error) {
 				continue
 			}
 			if v < 0 || v >= EarthRadiusKm {
-				return nil, inputErr(b.file, b.line(rec), "depth %g km is outside 0..%g km (if this column is a radius, name it radius)", v, EarthRadiusKm)
+				hint := " (if this column is a radius, name it radius)"
+				if v < 0 {
+					hint = " (depths are positive downwards; a height or elevation axis must be converted to depth first)"
+				}
+				return nil, inputErr(b.file, b.line(rec), "depth %g km is outside 0..%g km%s", v, EarthRadiusKm, hint)
 			}
 			if v <= depthTooDeep {
 				allDeep = false

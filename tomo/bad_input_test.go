@@ -39,7 +39,7 @@ func TestBadInput(t *testing.T) {
 		{"regional-longitudes.txt", 0, []string{"longitudes cover 0..90 in 4 columns at spacing 30", "a global grid at this spacing has 12 columns"}},
 		{"incomplete-depth.csv", 0, []string{"1 of 8 points are missing, the first at lon 180, lat 45, depth 3000 km", "lon-lat-depth combination"}},
 		{"single-latitude.txt", 1, []string{"every point has latitude 10", "at least two latitudes"}},
-		{"negative-depth.txt", 1, []string{"depth -5 km is outside 0..6371"}},
+		{"negative-depth.txt", 1, []string{"depth -5 km is outside 0..6371", "positive downwards"}},
 		{"radius-as-depth.txt", 1, []string{"looks like a radius"}},
 		{"infinite-value.txt", 6, []string{`"Inf" is infinite`}},
 		{"wrong-field-count.csv", 5, []string{"4 fields, but the header (line 1) has 3 columns"}},
@@ -49,6 +49,7 @@ func TestBadInput(t *testing.T) {
 		{"bad-quote.csv", 2, []string{`"`}},
 		{"hdf5.nc", 0, []string{"netCDF-4 (HDF5)", "nccopy -k classic in.nc out.nc"}},
 		{"implausible-amplitude.txt", 0, []string{"1 values exceed the plausible 20 %", "largest 35 % at lon 225, lat 45", "force"}},
+		{"undeclared-sentinel.txt", 0, []string{"3 values exceed", "the value -9999 occurs 3 times", "# missing: -9999"}},
 		{"unknown-units.csv", 0, []string{`units "furlongs" are not understood`}},
 		{"absolute-no-reference.txt", 0, []string{"need a reference velocity"}},
 	}

@@ -168,6 +168,16 @@ func Normalize(g *Grid, opts UnitOptions) (*Grid, *UnitReport, error) {
 		}
 		msg := fmt.Sprintf("%d values exceed the plausible %g %% in magnitude when read as %s (largest %.4g %% at %s); lowermost-mantle anomalies are a few percent",
 			nbad, 100*limit, from, 100*out.Values[worst], where)
+		raw := g.Values[worst]
+		repeats := 0
+		for s, v := range g.Values {
+			if v == raw && (g.Valid == nil || g.Valid[s]) {
+				repeats++
+			}
+		}
+		if repeats > 1 {
+			msg += fmt.Sprintf("; the value %g occurs %d times: if it marks missing data, declare it as a missing-value sentinel (a '# missing: %g' line in a text or CSV file)", raw, repeats, raw)
+		}
 		if !opts.Force {
 			hint := ""
 			if rep.Guessed {

@@ -140,3 +140,23 @@ func TestStreamingCDF5(t *testing.T) {
 		t.Errorf("NumRecs = %d, values %v; want 4, [7 8 9 10]", g.NumRecs, got)
 	}
 }
+
+// TestDecodeLargeHeaderReaderAt decodes, through an io.ReaderAt, a header
+// longer than the first read (64 KiB) so that the decoder reads more.
+func TestDecodeLargeHeaderReaderAt(t *testing.T) {
+	f := &netcdf.File{}
+	f.AddDim("x", 2)
+	f.SetAttr("history", string(bytes.Repeat([]byte("long history line\n"), 20000))) // 360 kB
+	f.AddVar("v", netcdf.Short, []string{"x"}, []int16{-3, 4})
+	var buf bytes.Buffer
+	if err := netcdf.Encode(&buf, f, netcdf.CDF5); err != nil {
+		t.Fatal(err)
+	}
+	g, err := netcdf.Decode(bytes.NewReader(buf.Bytes()), int64(buf.Len()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, _ := g.Values(g.Var("v")); !reflect.DeepEqual(got, []int16{-3, 4}) || len(g.Attr("history").Text()) != 360000 {
+		t.Errorf("values %v, history of %d bytes", got, len(g.Attr("history").Text()))
+	}
+}

@@ -74,3 +74,51 @@ func ExampleSpectrum() {
 	fmt.Println(err, bytes.HasPrefix(b, []byte("<?xml")))
 	// Output: <nil> true
 }
+
+// Two invented patterns side by side on one colour scale, hatched where
+// the flux is below an adiabatic value of 45 mW/m².
+func ExamplePanel() {
+	low := func(lon0 float64) func(lon, lat float64) float64 {
+		return func(lon, lat float64) float64 {
+			d := math.Hypot(math.Remainder(lon-lon0, 360), lat) / 40
+			return 65 - 30*math.Exp(-d*d)
+		}
+	}
+	p := &figure.Panel{
+		Title:   "Two invented patterns",
+		Maps:    []*figure.Map{{Title: "low at 180°", Field: low(180)}, {Title: "low at 0°", Field: low(0)}},
+		Center:  65,
+		Label:   "heat flux",
+		Units:   "mW/m²",
+		Hatches: []figure.Hatch{{Below: 45, Label: "below q_ad"}},
+	}
+	b, err := figure.PNG(p)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	cfg, _ := png.DecodeConfig(bytes.NewReader(b))
+	fmt.Printf("%d x %d PNG\n", cfg.Width, cfg.Height)
+	// Output: 900 x 370 PNG
+}
+
+// A sweep summary: achieved q* against requested q* for two truncation
+// degrees, with the line y = x for reference (invented numbers).
+func ExampleSweep() {
+	q := []float64{0.5, 1, 1.5, 2}
+	s := &figure.Sweep{
+		Title:  "q* sweep (invented numbers)",
+		XLabel: "requested q*",
+		Panels: []figure.SweepPanel{{
+			YLabel:   "achieved q*",
+			Identity: true,
+			Series: []figure.XYSeries{
+				{Label: "lmax 4", X: q, Y: []float64{0.46, 0.93, 1.39, 1.86}},
+				{Label: "lmax 12", X: q, Y: []float64{0.5, 1, 1.5, 2}},
+			},
+		}},
+	}
+	_, err := figure.PNG(s)
+	fmt.Println(err)
+	// Output: <nil>
+}

@@ -8,8 +8,8 @@ import (
 // TestHatch checks that hatching changes exactly the pixels on hatch
 // lines where the field is below the value, and that the hatch ink stands
 // out from every colour of the scale by at least 25 in CIELAB lightness
-// (an L* difference of 25 is plainly visible; a just noticeable difference
-// is about 1, Sharma 2003, from memory).
+// (ten times the CIE76 difference of about 2.3 that is just noticeable,
+// Sharma 2003, Digital Color Imaging Handbook, from memory).
 func TestHatch(t *testing.T) {
 	m := &Map{Field: demoField}
 	l, err := fitMap(m.Projection, 0, 0, 400, 200)

@@ -12,7 +12,7 @@ package sh
 // with Pbar_lm the orthonormal associated Legendre functions of the
 // canonical convention (sqrt(2) included for m > 0, no Condon-Shortley
 // phase). Synthesis evaluates the Legendre sums (O(L^2) per ring pair) and
-// then one real FFT per ring (gonum dsp/fourier); analysis does the FFTs
+// then one real FFT per ring (fft.go); analysis does the FFTs
 // first and then the transposed Legendre sums weighted by the quadrature
 // weights. Rings symmetric about the equator are processed as pairs:
 // Pbar_lm(-x) = (-1)^(l-m) Pbar_lm(x), so one recursion serves both rings
@@ -59,8 +59,6 @@ import (
 	"math"
 	"math/cmplx"
 	"sync"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // Scaling constants for the underflow-safe start of the recursion.
@@ -147,7 +145,7 @@ func (t *Transform) Synthesis(dst []float64, c *Coeffs) []float64 {
 		}
 	}
 	for i := range t.grid.NLat() {
-		ws.fft.Sequence(dst[i*t.nlon:(i+1)*t.nlon], spec[i*nk:(i+1)*nk])
+		ws.fft.backward(dst[i*t.nlon:(i+1)*t.nlon], spec[i*nk:(i+1)*nk])
 	}
 	return dst
 }
@@ -200,7 +198,7 @@ func (t *Transform) adjoint(dst *Coeffs, field []float64, ringw []float64, scale
 	nk := t.nlon/2 + 1
 	spec := ws.spec
 	for i := range t.grid.NLat() {
-		ws.fft.Coefficients(spec[i*nk:(i+1)*nk], field[i*t.nlon:(i+1)*t.nlon])
+		ws.fft.forward(spec[i*nk:(i+1)*nk], field[i*t.nlon:(i+1)*t.nlon])
 	}
 	for m := 0; m <= t.lmax; m++ {
 		sn, cs := math.Sincos(-float64(m) * t.grid.Lon0)
@@ -231,7 +229,7 @@ func bin(x []complex128, k, n int) complex128 {
 
 // workspace is the scratch space of one call.
 type workspace struct {
-	fft  *fourier.FFT
+	fft  *realFFT
 	spec []complex128 // nlat * (nlon/2+1) ring spectra
 	leg  legWork
 }
@@ -264,7 +262,7 @@ func (t *Transform) get() *workspace {
 		return v.(*workspace)
 	}
 	return &workspace{
-		fft:  fourier.NewFFT(t.nlon),
+		fft:  newRealFFT(t.nlon),
 		spec: make([]complex128, t.grid.NLat()*(t.nlon/2+1)),
 		leg:  newLegWork(len(t.rg.north), t.lmax),
 	}

@@ -1,6 +1,6 @@
 // Package export writes what cmbflux makes -- spherical-harmonic coefficient
 // tables, grids, outlines and build manifests -- and reads the coefficient
-// tables and manifests back. Every file states its own conventions; nothing
+// tables, grids and manifests back. Every file states its own conventions; nothing
 // is implicit. All writers produce the same bytes for the same inputs (no
 // timestamps, map keys sorted), and the *File helpers write atomically
 // (temporary file in the destination folder, fsync, rename). Stage builds a
@@ -86,7 +86,7 @@
 // cmbflux_format, cmbflux_grid, cmbflux_reference_radius_km, cmbflux_sign,
 // cmbflux_inputs and cmbflux_parameters (one "key = value" per line).
 // Units should be UDUNITS strings (such as mW/m^2) so that CF tools read
-// them.
+// them. ReadGrid reads all three back exactly.
 //
 // # Outlines
 //

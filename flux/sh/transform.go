@@ -127,43 +127,58 @@ func (t *Transform) Synthesis(dst []float64, c *Coeffs) []float64 {
 	ws := t.get()
 	defer t.pool.Put(ws)
 	nk := t.nlon/2 + 1
-	spec := ws.spec
+	nlat := t.grid.NLat()
+	spec := ws.spec // bin-major: spec[k*nlat + ring]
 	clear(spec)
 	for m := 0; m <= t.lmax; m++ {
 		t.legendreSynth(ws, c, m)
 		// Fold order m into the FFT bins (aliasing when nlon <= 2m).
 		sn, cs := math.Sincos(float64(m) * t.grid.Lon0)
 		rot := complex(cs, sn)
-		k := m % t.nlon
-		for p := range t.rg.north {
-			a, b := ws.leg.er[p]+ws.leg.or[p], ws.leg.ei[p]+ws.leg.oi[p]
-			foldBin(spec[t.rg.north[p]*nk:(t.rg.north[p]+1)*nk], k, t.nlon, complex(a, -b)*rot)
+		kb, mode := binOf(m%t.nlon, t.nlon)
+		row := spec[kb*nlat : (kb+1)*nlat]
+		lw := &ws.leg
+		for p, in := range t.rg.north {
+			a, b := lw.er[p]+lw.or[p], lw.ei[p]+lw.oi[p]
+			row[in] += foldValue(complex(a, -b)*rot, mode)
 			if s := t.rg.south[p]; s >= 0 {
-				a, b := ws.leg.er[p]-ws.leg.or[p], ws.leg.ei[p]-ws.leg.oi[p]
-				foldBin(spec[s*nk:(s+1)*nk], k, t.nlon, complex(a, -b)*rot)
+				a, b := lw.er[p]-lw.or[p], lw.ei[p]-lw.oi[p]
+				row[s] += foldValue(complex(a, -b)*rot, mode)
 			}
 		}
 	}
-	for i := range t.grid.NLat() {
-		ws.fft.backward(dst[i*t.nlon:(i+1)*t.nlon], spec[i*nk:(i+1)*nk])
+	buf := ws.ring[:nk]
+	for i := range nlat {
+		for k := range buf {
+			buf[k] = spec[k*nlat+i]
+		}
+		ws.fft.backward(dst[i*t.nlon:(i+1)*t.nlon], buf)
 	}
 	return dst
 }
 
-// foldBin adds the term Re(z e^{i 2 pi k j / n}) to the real-FFT bins x
-// (gonum's Sequence convention: x_j = X_0 + 2 sum Re(X_k e^{i 2 pi jk/n}) +
-// X_{n/2} (-1)^j for even n).
-func foldBin(x []complex128, k, n int, z complex128) {
+// binOf returns the real-FFT bin that carries frequency k (0 <= k < n) and
+// how a term Re(z e^{i 2 pi k j/n}) enters it (gonum's Sequence convention:
+// x_j = X_0 + 2 sum Re(X_k e^{i 2 pi jk/n}) + X_{n/2} (-1)^j for even n):
+// mode 0 adds Re z, mode 1 adds z/2, mode 2 adds conj(z)/2 at bin n-k.
+func binOf(k, n int) (bin, mode int) {
 	switch {
-	case k == 0:
-		x[0] += complex(real(z), 0)
+	case k == 0 || 2*k == n:
+		return k, 0
 	case 2*k < n:
-		x[k] += z / 2
-	case 2*k == n:
-		x[k] += complex(real(z), 0)
-	default:
-		x[n-k] += cmplx.Conj(z) / 2
+		return k, 1
 	}
+	return n - k, 2
+}
+
+func foldValue(z complex128, mode int) complex128 {
+	switch mode {
+	case 0:
+		return complex(real(z), 0)
+	case 1:
+		return z / 2
+	}
+	return cmplx.Conj(z) / 2
 }
 
 // Analysis computes the coefficients of degree <= LMax of the field on the
@@ -196,41 +211,48 @@ func (t *Transform) adjoint(dst *Coeffs, field []float64, ringw []float64, scale
 	ws := t.get()
 	defer t.pool.Put(ws)
 	nk := t.nlon/2 + 1
-	spec := ws.spec
-	for i := range t.grid.NLat() {
-		ws.fft.forward(spec[i*nk:(i+1)*nk], field[i*t.nlon:(i+1)*t.nlon])
+	nlat := t.grid.NLat()
+	spec := ws.spec // bin-major: spec[k*nlat + ring]
+	buf := ws.ring[:nk]
+	for i := range nlat {
+		ws.fft.forward(buf, field[i*t.nlon:(i+1)*t.nlon])
+		for k, v := range buf {
+			spec[k*nlat+i] = v
+		}
 	}
+	lw := &ws.leg
 	for m := 0; m <= t.lmax; m++ {
 		sn, cs := math.Sincos(-float64(m) * t.grid.Lon0)
 		rot := complex(cs, sn)
-		k := m % t.nlon
-		for p := range t.rg.north {
-			in := t.rg.north[p]
-			gn := rot * bin(spec[in*nk:(in+1)*nk], k, t.nlon) * complex(ringw[in]*scale, 0)
+		kb, mode := binOf(m%t.nlon, t.nlon)
+		row := spec[kb*nlat : (kb+1)*nlat]
+		for p, in := range t.rg.north {
+			v := row[in]
+			if mode == 2 {
+				v = cmplx.Conj(v)
+			}
+			gn := rot * v * complex(ringw[in]*scale, 0)
 			var gs complex128
 			if s := t.rg.south[p]; s >= 0 {
-				gs = rot * bin(spec[s*nk:(s+1)*nk], k, t.nlon) * complex(ringw[s]*scale, 0)
+				v := row[s]
+				if mode == 2 {
+					v = cmplx.Conj(v)
+				}
+				gs = rot * v * complex(ringw[s]*scale, 0)
 			}
-			ws.leg.er[p], ws.leg.ei[p] = real(gn+gs), imag(gn+gs)
-			ws.leg.or[p], ws.leg.oi[p] = real(gn-gs), imag(gn-gs)
+			lw.er[p], lw.ei[p] = real(gn+gs), imag(gn+gs)
+			lw.or[p], lw.oi[p] = real(gn-gs), imag(gn-gs)
 		}
 		t.legendreAdj(ws, dst, m)
 	}
 	return dst
 }
 
-// bin returns sum_j x_j e^{-i 2 pi k j/n} from the real-FFT bins.
-func bin(x []complex128, k, n int) complex128 {
-	if 2*k <= n {
-		return x[k]
-	}
-	return cmplx.Conj(x[n-k])
-}
-
 // workspace is the scratch space of one call.
 type workspace struct {
 	fft  *realFFT
-	spec []complex128 // nlat * (nlon/2+1) ring spectra
+	spec []complex128 // (nlon/2+1) * nlat ring spectra, bin-major
+	ring []complex128 // one ring's spectrum
 	leg  legWork
 }
 
@@ -264,6 +286,7 @@ func (t *Transform) get() *workspace {
 	return &workspace{
 		fft:  newRealFFT(t.nlon),
 		spec: make([]complex128, t.grid.NLat()*(t.nlon/2+1)),
+		ring: make([]complex128, t.nlon/2+1),
 		leg:  newLegWork(len(t.rg.north), t.lmax),
 	}
 }

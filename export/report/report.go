@@ -20,7 +20,8 @@ import (
 
 // Report is the content of one report. Empty fields are left out.
 type Report struct {
-	// Title is the page title and main heading.
+	// Title is the page title and main heading; empty means
+	// "<Generator> report".
 	Title string
 	// Summary is the job summary, one string per paragraph.
 	Summary []string
@@ -161,6 +162,9 @@ func (r *Report) view() (*pageView, error) {
 	v := &pageView{Title: r.Title, Summary: r.Summary, Warnings: r.Warnings, Files: r.Files, Generator: r.Generator}
 	if v.Generator == "" {
 		v.Generator = "cmbflux"
+	}
+	if strings.TrimSpace(v.Title) == "" {
+		v.Title = v.Generator + " report" // HTML requires a non-empty title
 	}
 	ids := map[string]int{}
 	add := func(s Section) error {

@@ -212,6 +212,21 @@ func TestWriteFile(t *testing.T) {
 	}
 }
 
+// TestEmptyReport checks that a report with nothing in it is still a
+// complete page with a non-empty title (HTML Living Standard 4.2.2: the
+// title element must not be empty or whitespace only, per the W3C
+// validator's rule; from memory).
+func TestEmptyReport(t *testing.T) {
+	s := render(t, &Report{})
+	if !strings.Contains(s, "<title>cmbflux report</title>") || !strings.Contains(s, "No warnings.") {
+		t.Errorf("empty report:\n%s", s)
+	}
+	if strings.Contains(s, "<nav") || strings.Contains(s, "<table") {
+		t.Error("empty report has a contents list or tables")
+	}
+}
+
+// TestAnchors checks the fragment identifiers made from headings.
 func TestAnchors(t *testing.T) {
 	seen := map[string]int{}
 	for _, c := range [][2]string{{"Degree power", "degree-power"}, {"Degree power", "degree-power-2"}, {"q* sweep (lmax)", "q-sweep-lmax"}, {"???", "section"}} {

@@ -103,7 +103,12 @@ func render(out io.Writer, svg bool, w, h int, fn func(c draw.Canvas) error) err
 	if _, err := cv.WriteTo(&b); err != nil {
 		return err
 	}
-	_, err := out.Write(bytes.ReplaceAll(b.Bytes(), []byte("data:image/jpg;base64,"), []byte("data:image/png;base64,")))
+	svgb := bytes.ReplaceAll(b.Bytes(), []byte("data:image/jpg;base64,"), []byte("data:image/png;base64,"))
+	// Text is laid out with Liberation Sans; where a viewer lacks it,
+	// Arial has the same metrics (Liberation Sans was drawn to match
+	// them), and any sans-serif face is closer than the default serif.
+	svgb = bytes.ReplaceAll(svgb, []byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"))
+	_, err := out.Write(svgb)
 	return err
 }
 

@@ -217,6 +217,9 @@ func TestSVGWellFormed(t *testing.T) {
 	if !strings.Contains(string(b), `xlink:href="data:image/png;base64,`) || strings.Contains(string(b), "image/jpg") {
 		t.Error("embedded raster not labelled image/png")
 	}
+	if strings.Contains(string(b), "font-family:Liberation Sans;") || !strings.Contains(string(b), "sans-serif") {
+		t.Error("SVG text has no sans-serif fallback font")
+	}
 	if !strings.Contains(string(b), "invented demo scenario") {
 		t.Error("title missing from the SVG")
 	}

@@ -182,6 +182,8 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 			r.a, r.b = cc.At(l, m)
 		}
 		r.l, r.m = l, m
+		// A negative zero (from a sign change of a zero) is written as 0.
+		r.a, r.b = r.a+0, r.b+0
 		if !finite(r.a) || !finite(r.b) {
 			return fmt.Errorf("export: coefficient (l, m) = (%d, %d) is not finite: %v, %v", l, m, r.a, r.b)
 		}

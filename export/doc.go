@@ -60,7 +60,8 @@
 // Data rows follow the header: "l m a b" separated by one space (text) or
 // a comma (CSV, after a heading record "l,m,cos,sin" or "l,m,re,im", RFC
 // 4180). Numbers are printed with the fewest digits that read back to the
-// same float64, so a table read in its own convention is exact. The CSV
+// same float64, so a table read in its own convention is exact (a negative
+// zero is written as 0). The CSV
 // header lines start with '#': tools that do not skip comment lines can be
 // told to skip the lines before the heading record.
 //

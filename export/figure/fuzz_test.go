@@ -34,3 +34,58 @@ func FuzzProjectionRoundTrip(f *testing.F) {
 		}
 	})
 }
+
+// FuzzGridAt checks that interpolation never indexes outside the grid and
+// stays within the range of the grid values (a bilinear interpolant is a
+// convex combination of its corners).
+func FuzzGridAt(f *testing.F) {
+	f.Add(0.0, 0.0)
+	f.Add(359.9999999999, -90.0)
+	f.Add(-1e300, 1e300)
+	g := demoGrid()
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range g.Values {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	f.Fuzz(func(t *testing.T, lon, lat float64) {
+		v := g.At(lon, lat)
+		if math.IsNaN(lon) || math.IsNaN(lat) || math.IsInf(lon, 0) {
+			if !math.IsNaN(v) {
+				t.Fatalf("At(%v, %v) = %v, want NaN", lon, lat, v)
+			}
+			return
+		}
+		if !(v >= lo-1e-9 && v <= hi+1e-9) {
+			t.Fatalf("At(%v, %v) = %v outside [%v, %v]", lon, lat, v, lo, hi)
+		}
+	})
+}
+
+// FuzzProjectLine checks that a projected line is cut at the map edge: no
+// step between consecutive points of a piece is longer than a tenth of the
+// map's width, whatever the end points.
+func FuzzProjectLine(f *testing.F) {
+	f.Add(uint8(0), 170.0, 10.0, -170.0, -20.0)
+	f.Add(uint8(2), 0.0, 89.0, 180.0, -89.0)
+	f.Fuzz(func(t *testing.T, k uint8, lon1, lat1, lon2, lat2 float64) {
+		for _, v := range []float64{lon1, lat1, lon2, lat2} {
+			if math.IsNaN(v) || math.Abs(v) > 1e4 {
+				return
+			}
+		}
+		m := &Map{Projection: Projection{Kind: Kind(k%3) + 1, CentralLon: 180}}
+		l, err := m.layout(900, 540)
+		if err != nil {
+			t.Fatal(err)
+		}
+		segs := projectLine(l, [][2]float64{{lon1, math.Mod(lat1, 90)}, {lon2, math.Mod(lat2, 90)}})
+		w := 2 * l.xmax * l.scale
+		for _, s := range segs {
+			for i := 1; i < len(s); i++ {
+				if d := math.Hypot(float64(s[i].X-s[i-1].X), float64(s[i].Y-s[i-1].Y)); d > w/10 {
+					t.Fatalf("step of %.0f of %.0f points", d, w)
+				}
+			}
+		}
+	})
+}

@@ -51,7 +51,8 @@ func (g *Grid) check() error {
 // bilinear interpolation in longitude and latitude, periodic in longitude.
 // North of the northernmost row and south of the southernmost row the
 // nearest row is interpolated in longitude only. The result is NaN when a
-// neighbouring value is NaN. At panics if the grid's shape is invalid.
+// neighbouring value is NaN, and when lon or lat is NaN or lon infinite.
+// At panics if the grid's shape is invalid.
 func (g *Grid) At(lon, lat float64) float64 {
 	if err := g.check(); err != nil {
 		panic(err.Error())
@@ -60,6 +61,9 @@ func (g *Grid) At(lon, lat float64) float64 {
 }
 
 func (g *Grid) at(lon, lat float64) float64 {
+	if math.IsNaN(lon) || math.IsNaN(lat) || math.IsInf(lon, 0) {
+		return math.NaN()
+	}
 	n := g.NLon
 	u := math.Mod((lon-g.Lon0)/360*float64(n), float64(n))
 	if u < 0 {

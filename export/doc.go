@@ -97,7 +97,8 @@
 // antimeridian, closed rings of at least four positions, exteriors
 // counter-clockwise and holes clockwise. Each feature carries area_km2,
 // area_fraction, centroid_lon and centroid_lat, computed on the sphere, and
-// the caller's properties; the foreign member "cmbflux" carries format
+// the caller's properties; with Outline.Split each connected patch is its
+// own feature, numbered by "patch". The foreign member "cmbflux" carries format
 // (cmbflux-outlines/1), quantity, units, sign, reference_radius_km,
 // cmbflux_version, inputs and parameters.
 //

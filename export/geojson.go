@@ -31,6 +31,11 @@ type Outline struct {
 	// Props are written as the feature's properties, after the computed
 	// ones (see WriteOutlines), whose names they must not reuse.
 	Props map[string]any
+	// Split writes one feature per connected patch of the region (pieces
+	// cut at the antimeridian stay together), each with its own area and
+	// centroid and the property "patch" (1, 2, ...), instead of one
+	// feature for the whole region.
+	Split bool
 }
 
 // The properties WriteOutlines adds to every feature.
@@ -411,8 +416,12 @@ type outlineMeta struct {
 // area_fraction (of the whole sphere), and centroid_lon and centroid_lat
 // (the spherical centroid, null when it is undefined), all computed on the
 // sphere by flux/contour with the ring edges taken as great-circle arcs,
-// followed by Props. The collection carries meta in the foreign member
-// "cmbflux". An Outline with no rings is written with a null geometry.
+// followed by Props. With Outline.Split, each connected patch is a feature
+// of its own whose area and centroid are computed exactly for the polygon
+// as drawn (edges straight in longitude and latitude, see lonLatMoments),
+// numbered by the property "patch". The collection carries meta in the
+// foreign member "cmbflux". An Outline with no rings is written with a null
+// geometry (one feature, or none when split).
 func WriteOutlines(w io.Writer, outlines []Outline, meta *Meta) error {
 	if meta == nil {
 		meta = &Meta{}
@@ -432,35 +441,41 @@ func WriteOutlines(w io.Writer, outlines []Outline, meta *Meta) error {
 		col.Metadata.Params = map[string]string{}
 	}
 	for k, o := range outlines {
-		f := featureJSON{Type: "Feature", Properties: map[string]any{}}
+		var polys [][][]pt
 		if len(o.Rings) > 0 {
-			polys, err := planarPolygons(o.Rings)
-			if err != nil {
+			var err error
+			if polys, err = planarPolygons(o.Rings); err != nil {
 				return fmt.Errorf("export: outline %d: %v", k, err)
 			}
-			if len(polys) > 0 {
-				g, err := geojson.ToGeoJSON(toGeom(polys))
+		}
+		if o.Split {
+			for n, patch := range patches(polys) {
+				area, v := 0.0, [3]float64{}
+				for _, p := range patch {
+					a, pv := lonLatMoments(p)
+					area += a
+					for i := range v {
+						v[i] += pv[i]
+					}
+				}
+				lon, lat, ok := direction(v)
+				f, err := feature(patch, area, r, lon, lat, ok, o.Props, map[string]any{PropPatch: n + 1})
 				if err != nil {
 					return fmt.Errorf("export: outline %d: %v", k, err)
 				}
-				f.Geometry = g
+				col.Features = append(col.Features, f)
 			}
+			continue
 		}
-		sr := contour.RegionArea(o.Rings)
-		if len(o.Rings) == 0 {
-			sr = 0
+		sr := 0.0
+		lon, lat, ok := 0.0, 0.0, false
+		if len(o.Rings) > 0 {
+			sr = contour.RegionArea(o.Rings)
+			lon, lat, ok = contour.Centroid(o.Rings)
 		}
-		f.Properties[PropAreaKm2] = sr * r * r
-		f.Properties[PropAreaFraction] = sr / (4 * math.Pi)
-		f.Properties[PropCentroidLon], f.Properties[PropCentroidLat] = nil, nil
-		if lon, lat, ok := contour.Centroid(o.Rings); ok && len(o.Rings) > 0 {
-			f.Properties[PropCentroidLon], f.Properties[PropCentroidLat] = lon, lat
-		}
-		for key, v := range o.Props {
-			if _, taken := f.Properties[key]; taken {
-				return fmt.Errorf("export: outline %d: property %q is computed by the writer", k, key)
-			}
-			f.Properties[key] = v
+		f, err := feature(polys, sr, r, lon, lat, ok, o.Props, nil)
+		if err != nil {
+			return fmt.Errorf("export: outline %d: %v", k, err)
 		}
 		col.Features = append(col.Features, f)
 	}
@@ -472,6 +487,47 @@ func WriteOutlines(w io.Writer, outlines []Outline, meta *Meta) error {
 	}
 	_, err := w.Write(b.Bytes())
 	return err
+}
+
+// PropPatch is the property holding the patch number of a split outline.
+const PropPatch = "patch"
+
+// direction returns the longitude and latitude of v, ok false when v is
+// too small to have one.
+func direction(v [3]float64) (lon, lat float64, ok bool) {
+	n := math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2])
+	if n < 1e-12 {
+		return 0, 0, false
+	}
+	return math.Atan2(v[1], v[0]) / deg, math.Asin(math.Max(-1, math.Min(1, v[2]/n))) / deg, true
+}
+
+// feature builds one GeoJSON feature; area is in steradians, r in km.
+func feature(polys [][][]pt, area, r, lon, lat float64, ok bool, props, extra map[string]any) (featureJSON, error) {
+	f := featureJSON{Type: "Feature", Properties: map[string]any{}}
+	if len(polys) > 0 {
+		g, err := geojson.ToGeoJSON(toGeom(polys))
+		if err != nil {
+			return f, err
+		}
+		f.Geometry = g
+	}
+	f.Properties[PropAreaKm2] = area * r * r
+	f.Properties[PropAreaFraction] = area / (4 * math.Pi)
+	f.Properties[PropCentroidLon], f.Properties[PropCentroidLat] = nil, nil
+	if ok {
+		f.Properties[PropCentroidLon], f.Properties[PropCentroidLat] = lon, lat
+	}
+	for key, v := range extra {
+		f.Properties[key] = v
+	}
+	for key, v := range props {
+		if _, taken := f.Properties[key]; taken {
+			return f, fmt.Errorf("property %q is computed by the writer", key)
+		}
+		f.Properties[key] = v
+	}
+	return f, nil
 }
 
 // WriteOutlinesFile writes the outlines atomically to path (see

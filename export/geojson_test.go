@@ -12,8 +12,6 @@ import (
 	"cmbflux/flux/contour"
 )
 
-const deg = math.Pi / 180
-
 // smallCircle returns n vertices at angular distance alpha (degrees) from
 // (lon0, lat0), counter-clockwise seen from outside the sphere when ccw,
 // by the destination-point formula of spherical trigonometry (common
@@ -333,5 +331,64 @@ func TestOutlineVerticesOnAntimeridian(t *testing.T) {
 	polys = checkRFC7946(t, c.Features[0].Geometry)
 	if len(polys) != 1 || len(polys[0][0]) != 4 {
 		t.Fatalf("touching triangle became %v", polys)
+	}
+}
+
+// Split outlines: one feature per patch, the antimeridian pieces kept in one
+// patch, each area against the cap formula 2 pi R^2 (1 - cos alpha) and each
+// centroid at its cap's centre.
+func TestOutlineSplitPatches(t *testing.T) {
+	const r = 3480.0
+	caps := []struct{ lon, lat, alpha float64 }{{180, 10, 20}, {20, -40, 12}, {-90, 60, 8}}
+	var rings [][][2]float64
+	for _, c := range caps {
+		rings = append(rings, smallCircle(c.lon, c.lat, c.alpha, 2000, true))
+	}
+	var buf bytes.Buffer
+	if err := WriteOutlines(&buf, []Outline{{Rings: rings, Split: true, Props: map[string]any{"region": "demo"}}}, nil); err != nil {
+		t.Fatal(err)
+	}
+	var c fc
+	if err := json.Unmarshal(buf.Bytes(), &c); err != nil {
+		t.Fatal(err)
+	}
+	if len(c.Features) != 3 {
+		t.Fatalf("%d features, want 3 patches", len(c.Features))
+	}
+	found := 0
+	for _, f := range c.Features {
+		checkRFC7946(t, f.Geometry)
+		if f.Props["region"] != "demo" || f.Props[PropPatch] == nil {
+			t.Errorf("properties %v", f.Props)
+		}
+		lon, lat := f.Props[PropCentroidLon].(float64), f.Props[PropCentroidLat].(float64)
+		for _, cp := range caps {
+			if math.Abs(math.Remainder(lon-cp.lon, 360)) < 1e-3 && math.Abs(lat-cp.lat) < 1e-3 {
+				found++
+				// Straight lon-lat edges between points of a small circle
+				// differ from it by a relative O((pi/n)^2) in area.
+				if e := relErr(f.Props[PropAreaKm2].(float64), capArea(r, cp.alpha)); e > 1e-4 {
+					t.Errorf("cap at (%v, %v): area %v, formula %v (relative error %v)", cp.lon, cp.lat, f.Props[PropAreaKm2], capArea(r, cp.alpha), e)
+				}
+			}
+		}
+	}
+	if found != 3 {
+		t.Errorf("%d of 3 centroids at their cap's centre", found)
+	}
+	// The polar cap as one patch: the exact zone area for an edge along a
+	// latitude, 2 pi R^2 (1 - sin 70).
+	var ring [][2]float64
+	for i := range 36 {
+		ring = append(ring, [2]float64{float64(i) * 10, 70})
+	}
+	buf.Reset()
+	WriteOutlines(&buf, []Outline{{Rings: [][][2]float64{ring}, Split: true}}, &Meta{RadiusKm: r})
+	json.Unmarshal(buf.Bytes(), &c)
+	if len(c.Features) != 1 {
+		t.Fatalf("%d features", len(c.Features))
+	}
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), capArea(r, 20)); e > 1e-13 {
+		t.Errorf("polar cap area %v, want %v exactly (edges along the parallel)", c.Features[0].Props[PropAreaKm2], capArea(r, 20))
 	}
 }

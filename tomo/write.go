@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode"
 )
 
 // WriteText writes g as a text grid that ReadText reads back to the same
@@ -29,7 +30,7 @@ func writeGrid(w io.Writer, g *Grid, sep byte, colPrefix string) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
 	name := g.Name
 	name = strings.Map(func(r rune) rune {
-		if r == ',' || r == '"' || r == '#' || r == ' ' || r == '\t' || r == '\n' || r == '\r' {
+		if r == ',' || r == '"' || r == '#' || unicode.IsSpace(r) || !unicode.IsPrint(r) {
 			return '_'
 		}
 		return r

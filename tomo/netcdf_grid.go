@@ -378,7 +378,7 @@ func (r *ncReader) read() (*Grid, error) {
 	nlon := len(srcLon)
 	nrow := len(zIdx) * len(latIdx)
 	valid := make([]bool, nrow*nlon)
-	nvalid := 0
+	nvalid, ninf := 0, 0
 	// transform masks, unpacks and reorders one row of the grid, taken at
 	// offset base of raw, into dst and its validity into vdst.
 	transform := func(dst []float64, vdst []bool, base int) {
@@ -388,6 +388,9 @@ func (r *ncReader) read() (*Grid, error) {
 				dst[i] = math.NaN()
 				vdst[i] = false
 				continue
+			}
+			if v-v != 0 { // ±Inf: not a measurement, and not marked missing
+				ninf++
 			}
 			dst[i] = v*m.scale + m.offset
 			vdst[i] = true
@@ -424,6 +427,9 @@ func (r *ncReader) read() (*Grid, error) {
 		for r := range nrow {
 			transform(g.Values[r*nlon:(r+1)*nlon], valid[r*nlon:(r+1)*nlon], rowBase(r))
 		}
+	}
+	if ninf > 0 {
+		return nil, r.fail(val.Name, "%d values are infinite; mark missing data with _FillValue or missing_value (CF-1.8 section 2.5.1)", ninf)
 	}
 	if nvalid == 0 {
 		return nil, r.fail(val.Name, "every value is missing (equal to the fill value, a missing_value or outside the valid range)")
@@ -588,17 +594,25 @@ func ncRegistration(f *netcdf.File, lonV, latV *netcdf.Var, lon, lat []float64) 
 // ncMissing holds the CF-1.8 section 2.5.1 tests and the section 8.1
 // unpacking of one variable.
 type ncMissing struct {
-	fill          float64
-	hasFill       bool
+	fill          float64 // NaN when there is none
 	missing       []float64
 	lo, hi        float64
 	scale, offset float64
 }
 
 func (m *ncMissing) bad(v float64) bool {
-	if v != v || (m.hasFill && v == m.fill) || v < m.lo || v > m.hi {
+	// NaN fails both comparisons; without a fill value, fill is NaN and
+	// never equal.
+	if !(v >= m.lo && v <= m.hi) || v == m.fill {
 		return true
 	}
+	if len(m.missing) > 0 {
+		return m.isMissing(v)
+	}
+	return false
+}
+
+func (m *ncMissing) isMissing(v float64) bool {
 	for _, x := range m.missing {
 		if v == x {
 			return true
@@ -617,7 +631,7 @@ func asType(t netcdf.Type, x float64) float64 {
 }
 
 func (r *ncReader) missing(v *netcdf.Var) (*ncMissing, error) {
-	m := &ncMissing{lo: math.Inf(-1), hi: math.Inf(1), scale: 1}
+	m := &ncMissing{lo: math.Inf(-1), hi: math.Inf(1), scale: 1, fill: math.NaN()}
 	num := func(a string) ([]float64, error) {
 		at := v.Attr(a)
 		if at == nil {
@@ -634,13 +648,13 @@ func (r *ncReader) missing(v *netcdf.Var) (*ncMissing, error) {
 		return nil, err
 	}
 	if fill != nil {
-		m.fill, m.hasFill = asType(v.Type, fill[0]), true
+		m.fill = asType(v.Type, fill[0])
 	} else if v.Type != netcdf.Byte {
 		// Without _FillValue, the default fill value of the type marks
 		// data never written; the netCDF User's Guide (Attribute
 		// Conventions) advises treating it as missing except for byte
 		// (from memory).
-		m.fill, m.hasFill = v.Type.DefaultFill(), true
+		m.fill = v.Type.DefaultFill()
 	}
 	if m.missing, err = num("missing_value"); err != nil {
 		return nil, err

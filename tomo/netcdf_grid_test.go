@@ -269,6 +269,12 @@ data: a = 1,2,3,4,5,6,7,8,9,10,11,12 ; }`,
  double a(lat, lon, lon) ;
 data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; }`,
 			want: []string{"variable a", "dimension lon appears twice"}},
+		{name: "infinite value", cdl: head + `
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double a(lat, lon) ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 0, 45 ; a = 1,2,3,4,5,Infinity,7,8,9,10,11,12 ; }`,
+			want: []string{"variable a", "1 values are infinite"}},
 		{name: "valid_range with valid_min", cdl: head + `
  double lon(lon) ; lon:units = "degrees_east" ;
  double lat(lat) ; lat:units = "degrees_north" ;

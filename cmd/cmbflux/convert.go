@@ -134,7 +134,7 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 		}
 		t, err := export.ReadCoeffs(bytes.NewReader(data), name, opt)
 		if err != nil {
-			return err
+			return asInput(err)
 		}
 		warns = append(warns, t.Warnings...)
 		m := t.Meta

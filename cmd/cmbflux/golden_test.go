@@ -135,3 +135,44 @@ func TestGoldenUsage(t *testing.T) {
 			}},
 	})
 }
+
+// buildDemo makes bc/ in the current folder for the cases that read it.
+func buildDemo(t *testing.T) {
+	t.Helper()
+	if _, e, code := cli([]string{"build", "--demo", "--qstar", "1", "--qmean", "80", "--qad", "60", "--lmax", "6", "--formats", "nc", "--out", "bc"}, ""); code != 0 {
+		t.Fatalf("setup build: %s", e)
+	}
+}
+
+func TestGoldenCommands(t *testing.T) {
+	runGoldenCases(t, []goldenCase{
+		{name: "build-demo", args: []string{"build", "--demo", "--qstar", "2.3", "--qmean", "80", "--qad", "60", "--lmax", "8", "--out", "bc"}},
+		{name: "build-demo-quiet", args: []string{"build", "--demo", "--qstar", "1", "--qmean", "80", "--quiet", "--out", "bc"}},
+		{name: "build-physical", args: []string{"build", "--demo", "--physical", "--dlnvs-dt", "-2e-5", "--conductivity", "8.4", "--thickness", "200", "--heatflow", "11", "--adiabatic-heatflow", "9", "--out", "bc"}},
+		{name: "build-schmidt", args: []string{"build", "--demo", "--qstar", "1", "--qmean", "80", "--norm", "schmidt", "--condon-shortley", "--lmax", "30", "--taper", "gauss:10", "--out", "bc"}},
+		{name: "build-config", args: []string{"build", "--config", "b.yaml", "--qstar", "1.5"},
+			setup: func(t *testing.T) {
+				writeFile(t, "b.yaml", "demo: true\nqstar: 1\nqmean: 80\nqad: 60\nlmax: 12\ntaper: cos:10:12\ndepth-range: 2700:2891\nout: bc\n")
+			}},
+		{name: "build-bad-taper", args: []string{"build", "--demo", "--qstar", "1", "--qmean", "80", "--taper", "cos:8", "--out", "bc"}, code: 2},
+		{name: "build-exists", args: []string{"build", "--demo", "--qstar", "1", "--qmean", "80", "--out", "bc"}, code: 2, setup: buildDemo},
+		{name: "build-physical-incomplete", args: []string{"build", "--demo", "--physical", "--dlnvs-dt", "-2e-5", "--qmean", "80", "--out", "bc"}, code: 2},
+		{name: "inspect-demo", args: []string{"inspect", "--demo"}},
+		{name: "inspect-coeffs", args: []string{"inspect", "bc/coefficients.txt"}, setup: buildDemo},
+		{name: "inspect-coeffs-json", args: []string{"inspect", "bc/coefficients.txt", "--json"}, setup: buildDemo},
+		{name: "inspect-grid", args: []string{"inspect", "bc/field.nc"}, setup: buildDemo},
+		{name: "inspect-missing", args: []string{"inspect", "nothing.nc"}, code: 2},
+		{name: "convert-stdout", args: []string{"convert", "bc/coefficients.txt", "--norm", "schmidt", "--out", "-"}, setup: buildDemo},
+		{name: "convert-plain-undeclared", args: []string{"convert", "plain.txt", "--out", "x.txt"}, code: 2,
+			setup: func(t *testing.T) { writeFile(t, "plain.txt", "0 0 1 0\n1 0 0.5 0\n1 1 0.1 0.2\n") }},
+		{name: "convert-plain-declared", args: []string{"convert", "plain.txt", "--from-norm", "schmidt", "--out", "-"},
+			setup: func(t *testing.T) { writeFile(t, "plain.txt", "0 0 1 0\n1 0 0.5 0\n1 1 0.1 0.2\n") }},
+		{name: "plot-demo", args: []string{"plot", "--demo", "--out", "m.png", "--spectrum", "s.svg"}},
+		{name: "plot-bad-ext", args: []string{"plot", "--demo", "--out", "m.pdf"}, code: 2},
+		{name: "demo", args: []string{"demo", "--out", "d"}},
+		{name: "demo-help", args: []string{"demo", "--help"}},
+		{name: "inspect-help", args: []string{"inspect", "--help"}},
+		{name: "convert-help", args: []string{"convert", "--help"}},
+		{name: "plot-help", args: []string{"plot", "--help"}},
+	})
+}

@@ -225,7 +225,7 @@ func printGridInfo(w io.Writer, in *gridInfo) {
 func inspectCoeffs(name string, data []byte) (*coeffInfo, error) {
 	t, err := export.ReadCoeffs(bytes.NewReader(data), name, nil)
 	if err != nil {
-		return nil, err
+		return nil, asInput(err)
 	}
 	c := t.Coeffs
 	can, err := c.Convert(sh.Canonical)

@@ -85,19 +85,26 @@ func report(stderr io.Writer, err error) int {
 // coefficient file it cannot use); it maps to exit status 2.
 var errBadInput = errors.New("bad input")
 
+// inputError is a problem with an input file found by the command itself
+// or reported by a reader without a sentinel; it maps to exit status 2.
+type inputError struct{ err error }
+
+func (e *inputError) Error() string { return e.err.Error() }
+func (e *inputError) Unwrap() []error { return []error{e.err, errBadInput} }
+
 // inputErrorf returns an error about an input file that maps to status 2.
 func inputErrorf(format string, args ...any) error {
-	return fmt.Errorf("%w", &wrapped{msg: fmt.Sprintf(format, args...), is: errBadInput})
+	return &inputError{fmt.Errorf(format, args...)}
 }
 
-type wrapped struct {
-	msg string
-	is  error
+// asInput marks an error from reading an input file as bad input (exit
+// status 2), keeping its text; nil stays nil.
+func asInput(err error) error {
+	if err == nil || errors.Is(err, tomo.ErrBadInput) || errors.Is(err, errBadInput) {
+		return err
+	}
+	return &inputError{err}
 }
-
-func (w *wrapped) Error() string   { return w.msg }
-func (w *wrapped) Unwrap() error   { return w.is }
-func (w *wrapped) Is(e error) bool { return e == w.is }
 
 // command is one subcommand.
 type command struct {

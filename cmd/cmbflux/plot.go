@@ -86,7 +86,7 @@ func runPlot(stdout, stderr io.Writer, args []string) error {
 		if looksLikeCoeffs(data) {
 			t, cerr := export.ReadCoeffs(bytes.NewReader(data), name, nil)
 			if cerr != nil {
-				return cerr
+				return asInput(cerr)
 			}
 			can, cerr := t.Coeffs.Convert(sh.Canonical)
 			if cerr != nil {

@@ -4,10 +4,12 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
 	"github.com/ctessum/geom/encoding/geojson"
+	"gonum.org/v1/gonum/integrate/quad"
 
 	"cmbflux/flux/contour"
 )
@@ -390,5 +392,21 @@ func TestOutlineSplitPatches(t *testing.T) {
 	}
 	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), capArea(r, 20)); e > 1e-13 {
 		t.Errorf("polar cap area %v, want %v exactly (edges along the parallel)", c.Features[0].Props[PropAreaKm2], capArea(r, 20))
+	}
+}
+
+// The 8-point Gauss-Legendre rule in patches.go (Abramowitz & Stegun 1964,
+// table 25.4) against gonum's integrate/quad.
+func TestGaussLegendreTable(t *testing.T) {
+	x, w := make([]float64, 8), make([]float64, 8)
+	quad.Legendre{}.FixedLocations(x, w, -1, 1)
+	if x[0] > x[7] { // gonum lists the nodes from +1 down
+		slices.Reverse(x)
+		slices.Reverse(w)
+	}
+	for i := range x {
+		if math.Abs(x[i]-glNodes[i]) > 1e-15 || math.Abs(w[i]-glWeights[i]) > 1e-15 {
+			t.Errorf("node %d: (%v, %v), gonum (%v, %v)", i, glNodes[i], glWeights[i], x[i], w[i])
+		}
 	}
 }

@@ -59,6 +59,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sync"
+	"sync/atomic"
 )
 
 // Scaling constants for the underflow-safe start of the recursion.
@@ -74,7 +75,8 @@ var (
 // coefficients of degree <= LMax (canonical convention) and fields on one
 // Grid. A Transform is immutable after NewTransform; its methods are safe
 // for concurrent use by several goroutines (scratch space comes from an
-// internal pool).
+// internal free list), and a single call can itself use several goroutines
+// (Workers).
 type Transform struct {
 	lmax int
 	grid *Grid
@@ -83,7 +85,12 @@ type Transform struct {
 	rg   *ringSet
 	st   *startTable
 
-	pool sync.Pool // *workspace
+	// Workers is the number of goroutines one call may use (0 or 1: the
+	// calling goroutine only). Set it before the plan is shared.
+	Workers int
+
+	mu   sync.Mutex
+	free []*workspace
 }
 
 // NewTransform returns a plan for degree lmax on grid g. It panics if
@@ -125,36 +132,104 @@ func (t *Transform) Synthesis(dst []float64, c *Coeffs) []float64 {
 		panic(fmt.Sprintf("sh: Synthesis destination has length %d, grid has %d points", len(dst), n))
 	}
 	ws := t.get()
-	defer t.pool.Put(ws)
-	nk := t.nlon/2 + 1
+	defer t.put(ws)
+	clear(ws.spec)
+	nw := t.workers()
+	if 2*t.lmax >= t.nlon {
+		nw = 1 // aliased orders share FFT bins
+	}
+	var next atomic.Int64
+	t.parallel(ws, nw, func(w *workerScratch) { t.synthOrders(w, ws.spec, c, &next) })
+	next.Store(0)
+	t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsBackward(w, ws.spec, dst, &next) })
+	return dst
+}
+
+// parallel runs f on nw workers (the calling goroutine and nw-1 others).
+func (t *Transform) parallel(ws *workspace, nw int, f func(w *workerScratch)) {
+	if nw <= 1 {
+		f(ws.w[0])
+		return
+	}
+	var wg sync.WaitGroup
+	for i := 1; i < nw; i++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			f(ws.w[i])
+		}()
+	}
+	f(ws.w[0])
+	wg.Wait()
+}
+
+// orderChunk is the number of orders a worker takes at a time.
+const orderChunk = 4
+
+// synthOrders computes the Legendre sums of the orders it takes from next
+// and adds them to the bin-major spectra.
+func (t *Transform) synthOrders(w *workerScratch, spec []complex128, c *Coeffs, next *atomic.Int64) {
 	nlat := t.grid.NLat()
-	spec := ws.spec // bin-major: spec[k*nlat + ring]
-	clear(spec)
-	for m := 0; m <= t.lmax; m++ {
-		t.legendreSynth(ws, c, m)
-		// Fold order m into the FFT bins (aliasing when nlon <= 2m).
-		sn, cs := math.Sincos(float64(m) * t.grid.Lon0)
-		rot := complex(cs, sn)
-		kb, mode := binOf(m%t.nlon, t.nlon)
-		row := spec[kb*nlat : (kb+1)*nlat]
-		lw := &ws.leg
-		for p, in := range t.rg.north {
-			a, b := lw.er[p]+lw.or[p], lw.ei[p]+lw.oi[p]
-			row[in] += foldValue(complex(a, -b)*rot, mode)
-			if s := t.rg.south[p]; s >= 0 {
-				a, b := lw.er[p]-lw.or[p], lw.ei[p]-lw.oi[p]
-				row[s] += foldValue(complex(a, -b)*rot, mode)
+	for {
+		m0 := int(next.Add(orderChunk)) - orderChunk
+		if m0 > t.lmax {
+			return
+		}
+		for m := m0; m < min(m0+orderChunk, t.lmax+1); m++ {
+			t.legendreSynth(w, c, m)
+			// Fold order m into the FFT bins (aliasing when nlon <= 2m).
+			sn, cs := math.Sincos(float64(m) * t.grid.Lon0)
+			rot := complex(cs, sn)
+			kb, mode := binOf(m%t.nlon, t.nlon)
+			row := spec[kb*nlat : (kb+1)*nlat]
+			lw := &w.leg
+			for p, in := range t.rg.north {
+				a, b := lw.er[p]+lw.or[p], lw.ei[p]+lw.oi[p]
+				row[in] += foldValue(complex(a, -b)*rot, mode)
+				if s := t.rg.south[p]; s >= 0 {
+					a, b := lw.er[p]-lw.or[p], lw.ei[p]-lw.oi[p]
+					row[s] += foldValue(complex(a, -b)*rot, mode)
+				}
 			}
 		}
 	}
-	buf := ws.ring[:nk]
-	for i := range nlat {
-		for k := range buf {
-			buf[k] = spec[k*nlat+i]
+}
+
+// ringChunk is the number of rings a worker transforms at a time.
+const ringChunk = 8
+
+func (t *Transform) ringsBackward(w *workerScratch, spec []complex128, dst []float64, next *atomic.Int64) {
+	nlat := t.grid.NLat()
+	buf := w.ring
+	for {
+		i0 := int(next.Add(ringChunk)) - ringChunk
+		if i0 >= nlat {
+			return
 		}
-		ws.fft.backward(dst[i*t.nlon:(i+1)*t.nlon], buf)
+		for i := i0; i < min(i0+ringChunk, nlat); i++ {
+			for k := range buf {
+				buf[k] = spec[k*nlat+i]
+			}
+			w.fft.backward(dst[i*t.nlon:(i+1)*t.nlon], buf)
+		}
 	}
-	return dst
+}
+
+func (t *Transform) ringsForward(w *workerScratch, spec []complex128, field []float64, next *atomic.Int64) {
+	nlat := t.grid.NLat()
+	buf := w.ring
+	for {
+		i0 := int(next.Add(ringChunk)) - ringChunk
+		if i0 >= nlat {
+			return
+		}
+		for i := i0; i < min(i0+ringChunk, nlat); i++ {
+			w.fft.forward(buf, field[i*t.nlon:(i+1)*t.nlon])
+			for k, v := range buf {
+				spec[k*nlat+i] = v
+			}
+		}
+	}
 }
 
 // binOf returns the real-FFT bin that carries frequency k (0 <= k < n) and
@@ -209,49 +284,61 @@ func (t *Transform) adjoint(dst *Coeffs, field []float64, ringw []float64, scale
 		panic(fmt.Sprintf("sh: Analysis destination has lmax %d (%v), plan has %d (canonical)", dst.LMax, dst.Conv, t.lmax))
 	}
 	ws := t.get()
-	defer t.pool.Put(ws)
-	nk := t.nlon/2 + 1
-	nlat := t.grid.NLat()
-	spec := ws.spec // bin-major: spec[k*nlat + ring]
-	buf := ws.ring[:nk]
-	for i := range nlat {
-		ws.fft.forward(buf, field[i*t.nlon:(i+1)*t.nlon])
-		for k, v := range buf {
-			spec[k*nlat+i] = v
-		}
-	}
-	lw := &ws.leg
-	for m := 0; m <= t.lmax; m++ {
-		sn, cs := math.Sincos(-float64(m) * t.grid.Lon0)
-		rot := complex(cs, sn)
-		kb, mode := binOf(m%t.nlon, t.nlon)
-		row := spec[kb*nlat : (kb+1)*nlat]
-		for p, in := range t.rg.north {
-			v := row[in]
-			if mode == 2 {
-				v = cmplx.Conj(v)
-			}
-			gn := rot * v * complex(ringw[in]*scale, 0)
-			var gs complex128
-			if s := t.rg.south[p]; s >= 0 {
-				v := row[s]
-				if mode == 2 {
-					v = cmplx.Conj(v)
-				}
-				gs = rot * v * complex(ringw[s]*scale, 0)
-			}
-			lw.er[p], lw.ei[p] = real(gn+gs), imag(gn+gs)
-			lw.or[p], lw.oi[p] = real(gn-gs), imag(gn-gs)
-		}
-		t.legendreAdj(ws, dst, m)
-	}
+	defer t.put(ws)
+	var next atomic.Int64
+	t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsForward(w, ws.spec, field, &next) })
+	next.Store(0)
+	t.parallel(ws, t.workers(), func(w *workerScratch) { t.adjOrders(w, ws.spec, dst, ringw, scale, &next) })
 	return dst
 }
 
-// workspace is the scratch space of one call.
+// adjOrders forms the even and odd ring-pair inputs of the orders it takes
+// from next and runs the transposed Legendre sums into dst.
+func (t *Transform) adjOrders(w *workerScratch, spec []complex128, dst *Coeffs, ringw []float64, scale float64, next *atomic.Int64) {
+	nlat := t.grid.NLat()
+	lw := &w.leg
+	for {
+		m0 := int(next.Add(orderChunk)) - orderChunk
+		if m0 > t.lmax {
+			return
+		}
+		for m := m0; m < min(m0+orderChunk, t.lmax+1); m++ {
+			sn, cs := math.Sincos(-float64(m) * t.grid.Lon0)
+			rot := complex(cs, sn)
+			kb, mode := binOf(m%t.nlon, t.nlon)
+			row := spec[kb*nlat : (kb+1)*nlat]
+			for p, in := range t.rg.north {
+				v := row[in]
+				if mode == 2 {
+					v = cmplx.Conj(v)
+				}
+				gn := rot * v * complex(ringw[in]*scale, 0)
+				var gs complex128
+				if s := t.rg.south[p]; s >= 0 {
+					v := row[s]
+					if mode == 2 {
+						v = cmplx.Conj(v)
+					}
+					gs = rot * v * complex(ringw[s]*scale, 0)
+				}
+				lw.er[p], lw.ei[p] = real(gn+gs), imag(gn+gs)
+				lw.or[p], lw.oi[p] = real(gn-gs), imag(gn-gs)
+			}
+			t.legendreAdj(w, dst, m)
+		}
+	}
+}
+
+// workspace is the scratch space of one call: the ring spectra and one
+// scratch per worker.
 type workspace struct {
-	fft  *realFFT
 	spec []complex128 // (nlon/2+1) * nlat ring spectra, bin-major
+	w    []*workerScratch
+}
+
+// workerScratch is the scratch of one goroutine within a call.
+type workerScratch struct {
+	fft  *realFFT
 	ring []complex128 // one ring's spectrum
 	leg  legWork
 }
@@ -279,19 +366,47 @@ func newLegWork(npair, lmax int) legWork {
 	return w
 }
 
-func (t *Transform) get() *workspace {
-	if v := t.pool.Get(); v != nil {
-		return v.(*workspace)
-	}
-	return &workspace{
-		fft:  newRealFFT(t.nlon),
-		spec: make([]complex128, t.grid.NLat()*(t.nlon/2+1)),
-		ring: make([]complex128, t.nlon/2+1),
-		leg:  newLegWork(len(t.rg.north), t.lmax),
-	}
+// workers returns the number of goroutines a call uses.
+func (t *Transform) workers() int {
+	return max(1, min(t.Workers, t.lmax+1))
 }
 
-func (t *Transform) legendreSynth(ws *workspace, c *Coeffs, m int) {
+// get takes a workspace from the plan's free list or makes one. The list is
+// not emptied by the garbage collector (unlike sync.Pool), so repeated
+// calls do not allocate.
+func (t *Transform) get() *workspace {
+	t.mu.Lock()
+	var ws *workspace
+	if n := len(t.free); n > 0 {
+		ws = t.free[n-1]
+		t.free = t.free[:n-1]
+	}
+	t.mu.Unlock()
+	if ws == nil {
+		ws = &workspace{spec: make([]complex128, t.grid.NLat()*(t.nlon/2+1))}
+	}
+	for len(ws.w) < t.workers() {
+		ws.w = append(ws.w, &workerScratch{
+			fft:  newRealFFT(t.nlon),
+			ring: make([]complex128, t.nlon/2+1),
+			leg:  newLegWork(len(t.rg.north), t.lmax),
+		})
+	}
+	return ws
+}
+
+// maxFree bounds the workspaces a plan keeps for reuse.
+const maxFree = 4
+
+func (t *Transform) put(ws *workspace) {
+	t.mu.Lock()
+	if len(t.free) < maxFree {
+		t.free = append(t.free, ws)
+	}
+	t.mu.Unlock()
+}
+
+func (t *Transform) legendreSynth(ws *workerScratch, c *Coeffs, m int) {
 	lw := &ws.leg
 	n := t.lmax - m + 1
 	cr, ci := lw.cr[:n], lw.ci[:n]
@@ -307,7 +422,7 @@ func (t *Transform) legendreSynth(ws *workspace, c *Coeffs, m int) {
 	t.rg.legendre(lw, t.rc, m, t.lmax, false, t.st.order(m))
 }
 
-func (t *Transform) legendreAdj(ws *workspace, dst *Coeffs, m int) {
+func (t *Transform) legendreAdj(ws *workerScratch, dst *Coeffs, m int) {
 	lw := &ws.leg
 	n := t.lmax - m + 1
 	clear(lw.cr[:n])

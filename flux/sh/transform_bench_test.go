@@ -12,30 +12,57 @@ var benchSizes = []int{63, 127, 255, 511}
 
 func BenchmarkSynthesis(b *testing.B) {
 	for _, lmax := range benchSizes {
-		b.Run(fmt.Sprintf("GL/lmax=%d", lmax), func(b *testing.B) {
-			tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
-			c := trRandCoeffs(lmax, 1)
-			f := tr.Synthesis(nil, c)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for b.Loop() {
-				tr.Synthesis(f, c)
+		for _, threads := range []int{1, 2} {
+			name := fmt.Sprintf("GL/lmax=%d", lmax)
+			if threads > 1 {
+				name += fmt.Sprintf("/threads=%d", threads)
 			}
-		})
+			b.Run(name, func(b *testing.B) {
+				tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
+				tr.Workers = threads
+				c := trRandCoeffs(lmax, 1)
+				f := tr.Synthesis(nil, c)
+				b.ReportAllocs()
+				b.ResetTimer()
+				for b.Loop() {
+					tr.Synthesis(f, c)
+				}
+			})
+		}
 	}
 }
 
 func BenchmarkAnalysis(b *testing.B) {
 	for _, lmax := range benchSizes {
-		b.Run(fmt.Sprintf("GL/lmax=%d", lmax), func(b *testing.B) {
-			tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
-			f := tr.Synthesis(nil, trRandCoeffs(lmax, 1))
-			c := NewCoeffs(lmax, Canonical)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for b.Loop() {
-				tr.Analysis(c, f)
+		for _, threads := range []int{1, 2} {
+			name := fmt.Sprintf("GL/lmax=%d", lmax)
+			if threads > 1 {
+				name += fmt.Sprintf("/threads=%d", threads)
 			}
-		})
+			b.Run(name, func(b *testing.B) {
+				tr := NewTransform(lmax, NewGaussLegendre(lmax+1, 2*lmax+2))
+				tr.Workers = threads
+				f := tr.Synthesis(nil, trRandCoeffs(lmax, 1))
+				c := NewCoeffs(lmax, Canonical)
+				b.ReportAllocs()
+				b.ResetTimer()
+				for b.Loop() {
+					tr.Analysis(c, f)
+				}
+			})
+		}
+	}
+}
+
+// BenchmarkAnalysisTotal511 measures everything an analysis at lmax 511
+// costs from scratch, plan included (the memory target is < 64 MiB in
+// total, see -benchmem).
+func BenchmarkAnalysisTotal511(b *testing.B) {
+	const lmax = 511
+	g := NewGaussLegendre(lmax+1, 2*lmax+2)
+	f := NewTransform(lmax, g).Synthesis(nil, trRandCoeffs(lmax, 1))
+	b.ReportAllocs()
+	for b.Loop() {
+		NewTransform(lmax, g).Analysis(nil, f)
 	}
 }

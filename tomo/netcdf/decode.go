@@ -576,11 +576,15 @@ func (f *File) chunks(v *Var, fn func(p []byte, first int64) error) error {
 // Float64s returns all values of v converted to float64, in row-major
 // order (records first). Values are returned as stored: fill values,
 // scale_factor and add_offset are left to the caller. For a File built
-// in memory it converts v.Data, and nil Data reads as the fill value that
-// Encode would write (the _FillValue attribute, else the type's default).
+// in memory it converts v.Data (all of it for a record variable), and nil
+// Data reads as the fill value that Encode would write (the _FillValue
+// attribute, else the type's default) for f.NumRecs records.
 func (f *File) Float64s(v *Var) ([]float64, error) {
 	n := f.Len(v)
 	if f.r == nil || v.Data != nil {
+		if m, ok := sliceLen(v.Data); ok && f.IsRecord(v) {
+			n = int64(m) // all records in Data, however many f.NumRecs says
+		}
 		out := make([]float64, n)
 		if v.Data == nil {
 			one := make([]float64, 1)

@@ -250,9 +250,12 @@ func abs(i int) int {
 	return i
 }
 
-// writeHeader writes "# key = value" lines, after a title line.
+// writeHeader writes "# key = value" lines after a title line. The second
+// line, header_lines, counts every '#' line (title included), so that tools
+// which do not skip comments can be told how many lines to skip.
 func writeHeader(w *bufio.Writer, title string, h []kv) {
 	w.WriteString("# " + title + "\n")
+	w.WriteString("# header_lines = " + strconv.Itoa(len(h)+2) + "\n")
 	for _, e := range h {
 		w.WriteString("# " + e.k + " = " + e.v + "\n")
 	}
@@ -289,7 +292,7 @@ func WriteCoeffsText(w io.Writer, c *sh.Coeffs, meta *Meta, opt *CoeffOptions) e
 // lines as the text table, then a heading record "l,m,cos,sin" (or
 // "l,m,re,im") and one record per (l, m). Readers that do not skip "#" lines
 // can be told to skip the header lines, whose count is fixed by the content
-// ("rows" and the number of header lines are in the header).
+// (header_lines says how many there are).
 func WriteCoeffsCSV(w io.Writer, c *sh.Coeffs, meta *Meta, opt *CoeffOptions) error {
 	t, err := buildCoeffTable(c, meta, opt)
 	if err != nil {

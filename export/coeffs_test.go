@@ -365,3 +365,28 @@ func TestReadCoeffCSVErrors(t *testing.T) {
 		t.Error("unnormalized coefficients of degree 400 were written")
 	}
 }
+
+// header_lines counts the '#' lines, so "skip N lines" works in tools that
+// do not know comments.
+func TestHeaderLinesCount(t *testing.T) {
+	var outs []string
+	for _, f := range []Format{FormatText, FormatCSV} {
+		var b bytes.Buffer
+		WriteCoeffs(&b, f, randomCoeffs(3, sh.Canonical, 2), testMeta(), nil)
+		outs = append(outs, b.String())
+		b.Reset()
+		WriteGrid(&b, f, testGrid(), testMeta())
+		outs = append(outs, b.String())
+	}
+	for _, s := range outs {
+		n := 0
+		for _, l := range strings.Split(s, "\n") {
+			if strings.HasPrefix(l, "#") {
+				n++
+			}
+		}
+		if !strings.Contains(s, "\n# header_lines = "+strconv.Itoa(n)+"\n") {
+			t.Errorf("%d '#' lines but header says otherwise:\n%s", n, s[:200])
+		}
+	}
+}

@@ -11,8 +11,9 @@
 // Three formats carry the same content: text (.txt), CSV (.csv) and JSON
 // (.json). Text and CSV start with header lines "# key = value" after a
 // title line; JSON has the same keys as members of one object. The keys,
-// in the order written:
+// in the order written (header_lines comes first, right after the title):
 //
+//	header_lines          number of '#' lines, title line included (text and CSV only)
 //	format                cmbflux-coefficients/1 (layout version)
 //	quantity              what the field is, e.g. heat flux through the core-mantle boundary
 //	units                 units of the coefficients (those of the field), e.g. mW/m^2
@@ -74,7 +75,7 @@
 // # Grids
 //
 // WriteGridText writes "lon lat value" lines and WriteGridCSV the records
-// "lon,lat,NAME", both after "# key = value" lines: format
+// "lon,lat,NAME", both after "# key = value" lines: header_lines, format
 // (cmbflux-grid/1), quantity, units, sign, variable, grid
 // (gauss-legendre, equiangular or user), nlon, nlat, lon_units
 // (degrees_east), lat_units (degrees_north), row_order, reference_radius_km,

@@ -31,6 +31,7 @@ func ExampleWriteCoeffsText() {
 	}
 	// Output:
 	// # cmbflux spherical-harmonic coefficients
+	// # header_lines = 24
 	// # format = cmbflux-coefficients/1
 	// # quantity = heat flux anomaly through the core-mantle boundary
 	// # units = mW/m^2

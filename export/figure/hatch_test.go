@@ -58,3 +58,19 @@ func TestHatch(t *testing.T) {
 		}
 	}
 }
+
+// TestBeyondLimits checks that the colour bar is told when values lie
+// beyond either limit of the scale.
+func TestBeyondLimits(t *testing.T) {
+	s := &sampled{hi: extremum{v: 90, ok: true}, lo: extremum{v: 30, ok: true}}
+	for _, c := range []struct {
+		half         float64
+		below, above bool
+	}{{40, false, false}, {30, true, false}, {20, true, true}} {
+		var cb colourBar
+		cb.beyond(Scale{Center: 65, HalfRange: c.half}, s)
+		if cb.below != c.below || cb.above != c.above {
+			t.Errorf("half range %v: below %v above %v, want %v %v", c.half, cb.below, cb.above, c.below, c.above)
+		}
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"strings"
 
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -98,7 +99,8 @@ type Map struct {
 	CenterLabel string
 	// HalfRange is the distance from Center to either colour limit; zero
 	// means the largest |value - Center| on the map, so the scale is
-	// symmetric and no value saturates.
+	// symmetric and no value saturates. When values lie beyond a limit,
+	// that end of the colour bar is drawn pointed.
 	HalfRange float64
 	// Label names the quantity, such as "CMB heat flux".
 	Label string
@@ -359,6 +361,7 @@ func (m *Map) write(out io.Writer, svg bool) error {
 		m.drawBody(dc, l, img, s, true)
 		drawHeader(dc, float64(w), float64(h), m.Title, m.Subtitle)
 		bar := colourBar{label: m.Label, units: m.Units, centerLabel: m.CenterLabel, levels: m.Levels, outlines: m.Outlines, hatches: m.Hatches, noData: s.noData}
+		bar.beyond(sc, s)
 		bar.draw(dc, float64(w), float64(l.y0)-22, sc)
 		return nil
 	})
@@ -651,6 +654,19 @@ type colourBar struct {
 	outlines                  []Outline
 	hatches                   []Hatch
 	noData                    bool
+	below, above              bool // some values lie beyond the limits
+}
+
+// beyond records whether the samples reach past the scale's limits.
+func (cb *colourBar) beyond(sc Scale, ss ...*sampled) {
+	for _, s := range ss {
+		if s.lo.ok && s.lo.v < sc.Center-sc.HalfRange {
+			cb.below = true
+		}
+		if s.hi.ok && s.hi.v > sc.Center+sc.HalfRange {
+			cb.above = true
+		}
+	}
 }
 
 // draw draws the band across a figure of width width, the bar's top at top.
@@ -683,6 +699,26 @@ func (cb *colourBar) draw(dc draw.Canvas, width, top float64, sc Scale) {
 	dc.SetLineStyle(draw.LineStyle{Color: inkFrame, Width: 0.8})
 	dc.Stroke(rectPath(vg.Length(bx), vg.Length(top-barH), vg.Length(bx+barW), vg.Length(top)))
 	lo, hi := sc.Center-sc.HalfRange, sc.Center+sc.HalfRange
+	// Values beyond the limits take the end colours: a pointed end on
+	// that side of the bar says so.
+	for _, e := range []struct {
+		over bool
+		x, d float64
+		c    color.RGBA
+	}{{cb.below, bx, -1, Diverging(-1)}, {cb.above, bx + barW, 1, Diverging(1)}} {
+		if !e.over {
+			continue
+		}
+		tri := polyPath([]vg.Point{
+			{X: vg.Length(e.x), Y: vg.Length(top)},
+			{X: vg.Length(e.x + e.d*barH), Y: vg.Length(top - barH/2)},
+			{X: vg.Length(e.x), Y: vg.Length(top - barH)},
+		}, true)
+		dc.SetColor(e.c)
+		dc.Fill(tri)
+		dc.SetLineStyle(draw.LineStyle{Color: inkFrame, Width: 0.8})
+		dc.Stroke(tri)
+	}
 	ts := textStyle(10.5, false, inkText, draw.XCenter, draw.YTop)
 	tick := draw.LineStyle{Color: inkFrame, Width: 0.8}
 	for _, v := range niceTicks(lo, hi, 6) {
@@ -722,6 +758,14 @@ func (cb *colourBar) draw(dc draw.Canvas, width, top float64, sc Scale) {
 		caption += ";  "
 	}
 	caption += "colour centre = " + cl + " " + formatValue(sc.Center)
+	for _, lv := range cb.levels {
+		switch name := strings.TrimSpace(lv.Label + " " + formatValue(lv.Value)); {
+		case lv.Value < lo:
+			caption += ";  " + name + " below the scale"
+		case lv.Value > hi:
+			caption += ";  " + name + " above the scale"
+		}
+	}
 	dc.FillText(textStyle(11.5, false, inkText, draw.XCenter, draw.YTop),
 		vg.Point{X: vg.Length(bx + barW/2), Y: vg.Length(top - barH - 22)}, caption)
 	if !hasLegend {

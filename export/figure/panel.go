@@ -145,6 +145,7 @@ func (p *Panel) write(out io.Writer, svg bool) error {
 			}
 		}
 		bar := colourBar{label: p.Label, units: p.Units, centerLabel: p.CenterLabel, levels: p.Levels, outlines: outlines, hatches: p.Hatches, noData: noData}
+		bar.beyond(sc, ss...)
 		bar.draw(dc, float64(w), mapBottomBand-22, sc)
 		return nil
 	})

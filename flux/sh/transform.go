@@ -138,10 +138,19 @@ func (t *Transform) Synthesis(dst []float64, c *Coeffs) []float64 {
 	if 2*t.lmax >= t.nlon {
 		nw = 1 // aliased orders share FFT bins
 	}
-	var next atomic.Int64
-	t.parallel(ws, nw, func(w *workerScratch) { t.synthOrders(w, ws.spec, c, &next) })
+	next := &ws.next
 	next.Store(0)
-	t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsBackward(w, ws.spec, dst, &next) })
+	if nw == 1 {
+		t.synthOrders(ws.w[0], ws.spec, c, next)
+	} else {
+		t.parallel(ws, nw, func(w *workerScratch) { t.synthOrders(w, ws.spec, c, next) })
+	}
+	next.Store(0)
+	if t.workers() == 1 {
+		t.ringsBackward(ws.w[0], ws.spec, dst, next)
+	} else {
+		t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsBackward(w, ws.spec, dst, next) })
+	}
 	return dst
 }
 
@@ -285,10 +294,17 @@ func (t *Transform) adjoint(dst *Coeffs, field []float64, ringw []float64, scale
 	}
 	ws := t.get()
 	defer t.put(ws)
-	var next atomic.Int64
-	t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsForward(w, ws.spec, field, &next) })
+	next := &ws.next
 	next.Store(0)
-	t.parallel(ws, t.workers(), func(w *workerScratch) { t.adjOrders(w, ws.spec, dst, ringw, scale, &next) })
+	if t.workers() == 1 {
+		t.ringsForward(ws.w[0], ws.spec, field, next)
+		next.Store(0)
+		t.adjOrders(ws.w[0], ws.spec, dst, ringw, scale, next)
+		return dst
+	}
+	t.parallel(ws, t.workers(), func(w *workerScratch) { t.ringsForward(w, ws.spec, field, next) })
+	next.Store(0)
+	t.parallel(ws, t.workers(), func(w *workerScratch) { t.adjOrders(w, ws.spec, dst, ringw, scale, next) })
 	return dst
 }
 
@@ -334,6 +350,7 @@ func (t *Transform) adjOrders(w *workerScratch, spec []complex128, dst *Coeffs, 
 type workspace struct {
 	spec []complex128 // (nlon/2+1) * nlat ring spectra, bin-major
 	w    []*workerScratch
+	next atomic.Int64 // work counter shared by the workers
 }
 
 // workerScratch is the scratch of one goroutine within a call.

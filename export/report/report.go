@@ -135,6 +135,7 @@ var css = func() string {
 
 // figureView is a figure ready for the template.
 type figureView struct {
+	Number        int
 	Caption, Alt  string
 	Src           template.URL
 	Width, Height int
@@ -167,6 +168,7 @@ func (r *Report) view() (*pageView, error) {
 		v.Title = v.Generator + " report" // HTML requires a non-empty title
 	}
 	ids := map[string]int{}
+	nfig := 0
 	add := func(s Section) error {
 		sv := sectionView{Heading: s.Heading, Text: s.Text, Tables: s.Tables, ID: anchor(s.Heading, ids)}
 		for i, f := range s.Figures {
@@ -174,6 +176,8 @@ func (r *Report) view() (*pageView, error) {
 			if err != nil {
 				return fmt.Errorf("report: section %q, figure %d: %w", s.Heading, i+1, err)
 			}
+			nfig++
+			fv.Number = nfig
 			sv.Figures = append(sv.Figures, fv)
 		}
 		v.Sections = append(v.Sections, sv)

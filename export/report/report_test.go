@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/base64"
+	"fmt"
 	"html"
 	"os"
 	"path/filepath"
@@ -108,6 +109,11 @@ func TestStructure(t *testing.T) {
 	iw, is, ifig := strings.Index(s, `id="warnings"`), strings.Index(s, `id="summary"`), strings.Index(s, "<figure>")
 	if iw < 0 || is < iw || ifig < is {
 		t.Errorf("order: warnings at %d, summary at %d, figures at %d", iw, is, ifig)
+	}
+	for i := range r.Figures {
+		if !strings.Contains(s, fmt.Sprintf(`<span class="fignum">Figure %d.</span>`, i+1)) {
+			t.Errorf("figure %d not numbered", i+1)
+		}
 	}
 	if !strings.Contains(s, "2 warnings: read them") {
 		t.Error("warning count missing from the header")

@@ -297,6 +297,9 @@ func (b *builder) build() (*Grid, error) {
 			}
 			if v < 0 || v >= EarthRadiusKm {
 				hint := " (if this column is a radius, name it radius)"
+				if v >= EarthRadiusKm {
+					hint = " (if the depths are in metres, say so in the column name: depth(m) in a '# columns:' line, or depth (m) in a CSV header)"
+				}
 				if v < 0 {
 					hint = " (depths are positive downwards; a height or elevation axis must be converted to depth first)"
 				}

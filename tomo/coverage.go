@@ -102,11 +102,19 @@ const maxGapWork = 20_000_000
 // Large grids with many missing points are searched on a coarser copy
 // (a coarse cell is valid when any of its points is) and the coarse cell's
 // diagonal is added to the gap, which errs towards a lower degree.
+// SafeDegree panics if the layer's Lon, Lat and Values do not form a grid
+// or Lat does not ascend.
 func SafeDegree(l *Layer) DegreeLimit {
+	if len(l.Lon) == 0 || len(l.Lat) == 0 || len(l.Values) != len(l.Lon)*len(l.Lat) {
+		panic("tomo: SafeDegree of a layer without a complete grid")
+	}
 	dlon := 360.0 / float64(len(l.Lon))
 	dlat := 180.0
 	if len(l.Lat) > 1 {
 		dlat = (l.Lat[len(l.Lat)-1] - l.Lat[0]) / float64(len(l.Lat)-1)
+	}
+	if !(dlat > 0) {
+		panic("tomo: SafeDegree needs ascending latitudes")
 	}
 	delta := math.Max(dlon, dlat)
 	lim := DegreeLimit{Nyquist: int(math.Floor(180/delta + 1e-9))}

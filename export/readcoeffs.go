@@ -607,6 +607,11 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 		conv = *opt.Conv
 		complexForm = opt.Complex
 		t.Declared = true
+		form := "real cos/sin"
+		if complexForm {
+			form = "complex"
+		}
+		t.Warnings = append(t.Warnings, fmt.Sprintf("%s: no cmbflux header: read as %s coefficients in the declared convention (%v)", name, form, conv))
 	}
 	t.Complex = complexForm
 	// Check the rows.

@@ -479,7 +479,7 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 			continue
 		}
 		if v.begin > size || v.vsize > size-v.begin {
-			return nil, h.fail(-1, "begin", ErrTruncated, "data at byte offset %d..%d lies beyond the end of the file (%d bytes)", v.begin, v.begin+v.vsize, size)
+			return nil, h.fail(-1, "begin", ErrTruncated, "data at byte offset %d..%d lies beyond the end of the file (%d bytes); the file is incomplete or its header damaged: obtain a complete copy", v.begin, v.begin+v.vsize, size)
 		}
 	}
 	h.vr = ""
@@ -521,7 +521,7 @@ func decodeHeader(b []byte, size int64) (*File, error) {
 		hi, lo := bits.Mul64(uint64(f.NumRecs-1), uint64(f.recSize))
 		end := lo + uint64(v.begin) + uint64(v.vsize)
 		if hi != 0 || lo > uint64(size) || end > uint64(size) {
-			return nil, h.fail(-1, "numrecs", ErrTruncated, "%d records of %d bytes from byte offset %d need more than the %d bytes of the file", f.NumRecs, f.recSize, v.begin, size)
+			return nil, h.fail(-1, "numrecs", ErrTruncated, "%d records of %d bytes from byte offset %d need more than the %d bytes of the file; the file is incomplete or its header damaged: obtain a complete copy", f.NumRecs, f.recSize, v.begin, size)
 		}
 	}
 	return f, nil

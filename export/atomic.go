@@ -38,6 +38,12 @@ func Create(path string) (*File, error) {
 	if err != nil {
 		return nil, fmt.Errorf("export: creating %s: %w", path, err)
 	}
+	// CreateTemp makes the file private (0600); outputs are for sharing.
+	if err := tmp.Chmod(0o644); err != nil {
+		tmp.Close()
+		os.Remove(tmp.Name())
+		return nil, fmt.Errorf("export: creating %s: %w", path, err)
+	}
 	return &File{path: path, tmp: tmp, buf: bufio.NewWriterSize(tmp, 1<<16)}, nil
 }
 
@@ -166,6 +172,11 @@ func NewStage(dest string) (*Stage, error) {
 	}
 	dir, err := os.MkdirTemp(parent, "."+base+".stage-*")
 	if err != nil {
+		return nil, fmt.Errorf("export: staging %s: %w", dest, err)
+	}
+	// MkdirTemp makes the folder private (0700); the output folder is not.
+	if err := os.Chmod(dir, 0o755); err != nil {
+		os.RemoveAll(dir)
 		return nil, fmt.Errorf("export: staging %s: %w", dest, err)
 	}
 	return &Stage{dest: dest, dir: dir, files: map[string]bool{}}, nil

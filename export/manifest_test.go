@@ -69,6 +69,12 @@ func TestStageCommitAbort(t *testing.T) {
 	if err != nil {
 		t.Fatalf("Verify of a fresh build: %v", err)
 	}
+	if st, _ := os.Stat(dest); st.Mode().Perm() != 0o755 {
+		t.Errorf("output folder mode %v, want rwxr-xr-x", st.Mode().Perm())
+	}
+	if st, _ := os.Stat(filepath.Join(dest, "coefficients.txt")); st.Mode().Perm() != 0o644 {
+		t.Errorf("output file mode %v, want rw-r--r--", st.Mode().Perm())
+	}
 	if len(got.Files) != 2 || got.Files[0].Name != "coefficients.txt" || got.Files[1].Name != "maps/flux.csv" || got.Files[0].Size != 8 {
 		t.Errorf("files %+v", got.Files)
 	}

@@ -79,11 +79,13 @@
 // (cmbflux-grid/1), quantity, units, sign, variable, grid
 // (gauss-legendre, equiangular or user), nlon, nlat, lon_units
 // (degrees_east), lat_units (degrees_north), row_order, reference_radius_km,
-// columns and the provenance keys above. WriteGridNetCDF writes netCDF
+// registration (node: the values are point samples), columns and the
+// provenance keys above. WriteGridNetCDF writes netCDF
 // classic (CDF-1) with CF-1.8 metadata: coordinate variables lat and lon
 // (units degrees_north and degrees_east, standard_name, long_name, axis Y
 // and X), the field NAME(lat, lon) with units, long_name (the quantity),
-// standard_name if given, and comment (the sign); global attributes
+// standard_name if given, comment (the sign) and cell_methods = "lat: point
+// lon: point" (point samples, CF-1.8 section 7.3); global attributes
 // Conventions = "CF-1.8", title, source and history (without a time), and
 // cmbflux_format, cmbflux_grid, cmbflux_reference_radius_km, cmbflux_sign,
 // cmbflux_inputs and cmbflux_parameters (one "key = value" per line).

@@ -116,6 +116,7 @@ func gridHeader(g *Grid, meta *Meta) []kv {
 		{"lon_units", "degrees_east"},
 		{"lat_units", "degrees_north"},
 		{"row_order", "latitude " + latOrder + ", longitude varies fastest"},
+		{"registration", "node: values are the field at the listed points, not cell averages"},
 		{"reference_radius_km", fmtFloat(meta.radiusKm())},
 		{"columns", "lon lat " + g.name()},
 	}
@@ -217,6 +218,9 @@ func GridNetCDF(g *Grid, meta *Meta) (*netcdf.File, error) {
 	if meta.Sign != "" {
 		v.SetAttr("comment", "sign: "+meta.Sign)
 	}
+	// Point samples, not cell averages (CF-1.8 section 7.3, cell_methods
+	// "point").
+	v.SetAttr("cell_methods", "lat: point lon: point")
 	kind := g.Kind
 	if kind == "" {
 		kind = "user"

@@ -139,7 +139,7 @@ func TestGridNetCDFWithNcdump(t *testing.T) {
 		`heat_flux:units = "mW/m^2" ;`, `heat_flux:long_name = "heat flux through the core-mantle boundary" ;`,
 		`:Conventions = "CF-1.8" ;`, `:title = "heat flux through the core-mantle boundary" ;`,
 		`:source = "cmbflux 0.0.0-test" ;`, `:history = "written by cmbflux 0.0.0-test`,
-		`:cmbflux_reference_radius_km = 3480. ;`, "qstar = 0.8",
+		`:cmbflux_reference_radius_km = 3480. ;`, "qstar = 0.8", `heat_flux:cell_methods = "lat: point lon: point" ;`,
 	} {
 		if !strings.Contains(s, want) {
 			t.Errorf("ncdump output lacks %q", want)

@@ -22,8 +22,8 @@ func TestComplexCheckValues(t *testing.T) {
 		colat, lon float64
 		want       float64 // real part
 	}{
-		{2, 1, math.Pi / 3, 0, -0.3345232717786446},          // references.md
-		{1, 1, math.Pi / 2, 0, -0.3454941494713355},          // references.md
+		{2, 1, math.Pi / 3, 0, -0.3345232717786446},           // references.md
+		{1, 1, math.Pi / 2, 0, -0.3454941494713355},           // references.md
 		{3, 2, math.Pi / 4, math.Pi / 2, -0.3613264303300692}, // references.md (real part)
 	} {
 		z := NewComplexCoeffs(tc.l, physics)

@@ -246,3 +246,42 @@ func TestTransformWorkers(t *testing.T) {
 		t.Errorf("analysis with 3 workers differs by %.3g", d)
 	}
 }
+
+// TestHighDegree synthesizes a degree-2700 expansion on rings down to 1e-4
+// rad from the poles and compares with the pointwise evaluator
+// (Coeffs.Evaluate, whose recursion is checked against 50-digit
+// references in legendre_test.go). Without the scaled start values the
+// sectoral terms underflow (sin(1e-4)^2700 = 1e-10800) and the recursion
+// never reaches the values near the turning point that dominate the sums
+// (Holmes & Featherstone 2002: scaled recursions are stable to about degree
+// 2700 at all latitudes).
+func TestHighDegree(t *testing.T) {
+	if testing.Short() {
+		t.Skip("lmax 2700 in -short mode")
+	}
+	const lmax, tol = 2700, 1e-10
+	c := trRandCoeffs(lmax, 13)
+	// Spectrum decaying like 1/(l+1) keeps all degrees visible in f.
+	for l := 0; l <= lmax; l++ {
+		for m := 0; m <= l; m++ {
+			c.C[Index(l, m)] /= float64(l + 1)
+			c.S[Index(l, m)] /= float64(l + 1)
+		}
+	}
+	colat := []float64{1e-4, 0.003, 0.1, 1.0, math.Pi / 2, math.Pi - 0.02}
+	g := NewRings(colat, 5, 0.7)
+	f := NewTransform(lmax, g).Synthesis(nil, c)
+	ev := NewEvaluator(c)
+	var worst, scale float64
+	for i, th := range colat {
+		for j := range g.NLon {
+			want := ev.Value(th, g.Lon(j))
+			scale = math.Max(scale, math.Abs(want))
+			worst = math.Max(worst, math.Abs(f[i*g.NLon+j]-want))
+		}
+	}
+	if worst > tol*scale {
+		t.Errorf("lmax 2700: max |fast - pointwise| %.3g, relative %.3g > %.1g", worst, worst/scale, tol)
+	}
+	t.Logf("lmax 2700: max difference %.3g relative to max |f| = %.3g", worst/scale, scale)
+}

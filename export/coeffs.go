@@ -151,11 +151,11 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 	t := &coeffTable{}
 	form, orders, expansion := "real", "0..l", "f(theta, phi) = sum_{l} sum_{m=0..l} N_lm P_l^m(cos theta) [cos_lm cos(m phi) + sin_lm sin(m phi)]"
 	t.columns = [4]string{"l", "m", "cos", "sin"}
-	var cx *complexTable
+	var cx *sh.ComplexCoeffs
 	if opt.Complex {
-		cx = toComplex(cc)
-		form, expansion = "complex", complexExpansion
-		orders = "0..l; " + complexNegativeRule
+		cx = cc.Complex()
+		form, expansion = "complex", complexExpansion(opt.Conv.CondonShortley)
+		orders = "0..l; " + complexNegativeRule(opt.Conv.CondonShortley)
 		if opt.NegativeOrders {
 			orders = "-l..l"
 		}
@@ -177,7 +177,8 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 	add := func(l, m int) error {
 		var r row
 		if cx != nil {
-			r.a, r.b = cx.at(l, m)
+			a := cx.At(l, m)
+			r.a, r.b = real(a), imag(a)
 		} else {
 			r.a, r.b = cc.At(l, m)
 		}

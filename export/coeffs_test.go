@@ -390,3 +390,33 @@ func TestHeaderLinesCount(t *testing.T) {
 		}
 	}
 }
+
+// With the Condon-Shortley phase, the complex form follows sh.ComplexCoeffs
+// (checked there against scipy.special.sph_harm): A_l,-m = (-1)^m conj(A_lm).
+func TestCoeffComplexCondonShortley(t *testing.T) {
+	cs := sh.Convention{Norm: sh.Orthonormal, CondonShortley: true}
+	c := sh.NewCoeffs(1, cs)
+	c.Set(1, 1, 2, 4)
+	var buf bytes.Buffer
+	if err := WriteCoeffsText(&buf, c, nil, &CoeffOptions{Conv: cs, Complex: true, NegativeOrders: true}); err != nil {
+		t.Fatal(err)
+	}
+	// A_11 = (2 - 4i)/sqrt(2); A_1,-1 = -conj(A_11) = (-2 - 4i)/sqrt(2).
+	for _, want := range []string{"\n1 -1 -1.414213562373095 -2.82842712474619\n", "\n1 1 1.414213562373095 -2.82842712474619\n",
+		"# orders = -l..l\n", "Y_l^-m = (-1)^m conj(Y_l^m)"} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("complex table lacks %q:\n%s", want, buf.String())
+		}
+	}
+	tab, err := ReadCoeffs(strings.NewReader(buf.String()), "cs.txt", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if cc, ss := tab.Coeffs.At(1, 1); math.Abs(cc-2) > 1e-15 || math.Abs(ss-4) > 1e-15 {
+		t.Errorf("read back (%v, %v), want (2, 4)", cc, ss)
+	}
+	bad := strings.Replace(buf.String(), "\n1 -1 -1.414213562373095 -2.82842712474619\n", "\n1 -1 1.414213562373095 2.82842712474619\n", 1)
+	if _, err := ReadCoeffs(strings.NewReader(bad), "cs.txt", nil); err == nil || !strings.Contains(err.Error(), "is not -conj of c_1,1") {
+		t.Errorf("inconsistent negative order: %v", err)
+	}
+}

@@ -31,7 +31,7 @@
 //	lmax                  highest degree
 //	degree_0              included or omitted (rows of l = 0 left out)
 //	orders                0..l, or -l..l (complex form only); for the complex
-//	                      form with 0..l the header says c_l,-m = conj(c_lm)
+//	                      form with 0..l the header gives c_l,-m in terms of c_lm
 //	row_order             l-major (l ascending, then m) or m-major (m, then l)
 //	rows                  number of data rows
 //	columns               l m cos sin, or l m re im
@@ -50,21 +50,22 @@
 // with N_lm = sqrt((2 - delta_m0) (2l+1)/(4 pi) (l-m)!/(l+m)!) for
 // orthonormal, the same without 1/(4 pi) for fully-normalized, without
 // (2l+1)/(4 pi) for Schmidt, and 1 for unnormalized; S_l0 is always 0. The
-// complex form, in the same normalization and phase but without the
-// (2 - delta_m0) factor, is
+// complex form is that of flux/sh's ComplexCoeffs, in the same
+// normalization and phase but without the (2 - delta_m0) factor:
 //
-//	f(theta, phi) = sum_l sum_{m=-l..l} c_lm N_l|m| P_l^|m|(cos theta) exp(i m phi),
+//	f(theta, phi) = sum_l sum_{m=-l..l} c_lm Y_l^m(theta, phi),
+//	Y_l^m = N_lm P_l^m(cos theta) exp(i m phi) for m >= 0,  Y_l^-m = s_m conj(Y_l^m),
 //
-// so c_l0 = C_l0 and c_lm = (C_lm - i S_lm)/sqrt(2), c_l,-m = conj(c_lm)
-// for m > 0.
+// with s_m = (-1)^m when the Condon-Shortley phase is included (the physics
+// convention, as in scipy.special.sph_harm) and 1 otherwise; so c_l0 = C_l0,
+// c_lm = (C_lm - i S_lm)/sqrt(2) and c_l,-m = s_m conj(c_lm) for m > 0.
 //
 // Data rows follow the header: "l m a b" separated by one space (text) or
 // a comma (CSV, after a heading record "l,m,cos,sin" or "l,m,re,im", RFC
 // 4180). Numbers are printed with the fewest digits that read back to the
 // same float64, so a table read in its own convention is exact (a negative
-// zero is written as 0). The CSV
-// header lines start with '#': tools that do not skip comment lines can be
-// told to skip the lines before the heading record.
+// zero is written as 0). The CSV header lines start with '#'; tools that do
+// not skip comment lines can skip header_lines lines instead.
 //
 // ReadCoeffs reads all three, and also plain "l m cos sin" tables made
 // elsewhere (no header, '#' comments, or non-numeric heading lines before

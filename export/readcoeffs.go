@@ -665,27 +665,40 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 	if wantRows >= 0 && wantRows != len(p.rows) {
 		return nil, inputErr(name, p.header["rows"].line, "header rows = %d but the file has %d data rows", wantRows, len(p.rows))
 	}
+	var z *sh.ComplexCoeffs
+	if complexForm {
+		z = sh.NewComplexCoeffs(lmax, conv)
+	}
 	for _, r := range p.rows {
 		i := sh.Index(r.l, abs(r.m))
 		switch {
 		case !complexForm:
 			c.C[i], c.S[i] = r.a, r.b
-		case r.m == 0:
-			c.C[i] = r.a
-		case r.m > 0:
-			// c_lm = (C - i S)/sqrt(2) (see toComplex).
-			c.C[i], c.S[i] = r.a*math.Sqrt2, -r.b*math.Sqrt2
+		case r.m >= 0:
+			z.Set(r.l, r.m, complex(r.a, r.b))
+			if r.m > 0 && neg[i] == 0 {
+				// Only m >= 0 given: A_l,-m = s_m conj(A_lm).
+				sm := phaseSign(r.m, conv.CondonShortley)
+				z.Set(r.l, -r.m, complex(sm*r.a, -sm*r.b))
+			}
 		default:
+			z.Set(r.l, r.m, complex(r.a, r.b))
 			k := pos[i] - 1
 			if k < 0 {
-				// Only the negative order is given: c_lm = conj(c_l,-m).
-				c.C[i], c.S[i] = r.a*math.Sqrt2, r.b*math.Sqrt2
+				// Only the negative order given: A_lm = s_m conj(A_l,-m).
+				sm := phaseSign(r.m, conv.CondonShortley)
+				z.Set(r.l, -r.m, complex(sm*r.a, -sm*r.b))
 				continue
 			}
-			if q := p.rows[k]; q.a != r.a || q.b != -r.b {
-				return nil, inputErr(name, r.line, "c_%d,%d = (%v, %v) is not the conjugate of c_%d,%d = (%v, %v) at line %d, as a real field needs", r.l, r.m, r.a, r.b, r.l, -r.m, q.a, q.b, q.line)
+			sm := phaseSign(r.m, conv.CondonShortley)
+			if q := p.rows[k]; r.a != sm*q.a || r.b != -sm*q.b {
+				return nil, inputErr(name, r.line, "c_%d,%d = (%v, %v) is not %s of c_%d,%d = (%v, %v) at line %d, as a real field needs (%s)",
+					r.l, r.m, r.a, r.b, map[bool]string{true: "-conj", false: "conj"}[sm < 0], r.l, -r.m, q.a, q.b, q.line, complexNegativeRule(conv.CondonShortley))
 			}
 		}
+	}
+	if complexForm {
+		c = z.Real()
 	}
 	// Missing pairs are zeros, with a warning.
 	var missing []string

@@ -488,3 +488,83 @@ func TestDiagnosticsJSON(t *testing.T) {
 		t.Errorf("ratio mode must not write physical constants: %s", b)
 	}
 }
+
+// legendreP returns the Legendre polynomial P_n(x) by the three-term
+// recurrence (n+1) P_{n+1} = (2n+1) x P_n - n P_{n-1} (Abramowitz & Stegun
+// 22.7.10).
+func legendreP(n int, x float64) float64 {
+	p0, p1 := 1.0, x
+	if n == 0 {
+		return p0
+	}
+	for k := 1; k < n; k++ {
+		p0, p1 = p1, (float64(2*k+1)*x*p1-float64(k)*p0)/float64(k+1)
+	}
+	return p1
+}
+
+func TestZonalBands(t *testing.T) {
+	// g = Y_L^0 = sqrt((2L+1)/(4 pi)) P_L(cos colat): the regions below a
+	// level are latitude bands (several rings, with holes, some thinner
+	// than the search grid). The area fraction of {P_L(x) < c} is half the
+	// total length of the x intervals, found here from the sign changes of
+	// P_L - c on a fine x grid refined by bisection (A&S 22.7.10
+	// recurrence), independent of the contouring.
+	for _, L := range []int{8, 16, 24} {
+		p, err := Ideal(nil, Term{L: L, M: 0, Weight: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		gmax, _, gmin, _ := p.Extrema()
+		n := math.Sqrt(float64(2*L+1) / (4 * math.Pi))
+		if !near(gmax, n, tolRel) {
+			t.Errorf("L %d: maximum %g, want sqrt((2L+1)/(4 pi)) = %g (P_L(1) = 1)", L, gmax, n)
+		}
+		frac := func(c float64) float64 {
+			const steps = 20000
+			f := func(x float64) float64 { return legendreP(L, x) - c }
+			length, start := 0.0, -1.0
+			inside := f(-1) < 0
+			for k := 1; k <= steps; k++ {
+				x0, x1 := -1+2*float64(k-1)/steps, -1+2*float64(k)/steps
+				if (f(x1) < 0) != (f(x0) < 0) {
+					a, b := x0, x1
+					for range 60 {
+						m := 0.5 * (a + b)
+						if (f(m) < 0) == (f(a) < 0) {
+							a = m
+						} else {
+							b = m
+						}
+					}
+					if inside {
+						length += a - start
+					} else {
+						start = a
+					}
+					inside = !inside
+				}
+			}
+			if inside {
+				length += 1 - start
+			}
+			return length / 2
+		}
+		for qs := 2.05; qs < 12; qs *= 1.3 {
+			r, _ := p.WithQStar(qs, Reference{QMean: 0.05, QAd: 0.04})
+			a := qs / (gmax - gmin)
+			for _, tc := range []struct {
+				name  string
+				got   float64
+				level float64 // of P_L
+			}{
+				{"negative", r.Diagnostics.AreaFractionNegative, -1 / (a * n)},
+				{"sub-adiabatic", *r.Diagnostics.AreaFractionSubadiabatic, (0.8 - 1) / (a * n)},
+			} {
+				if want := frac(tc.level); math.Abs(tc.got-want) > tolArea {
+					t.Errorf("L %d, q* %.3g %s: fraction %.8f, want %.8f", L, qs, tc.name, tc.got, want)
+				}
+			}
+		}
+	}
+}

@@ -151,7 +151,7 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 	p.nr = max(os*(g.LMax+1), 48)
 	grid := newDenseGrid(g, p.nr, true)
 	p.max, p.min = extrema(g, grid)
-	surf, err := grid.surface()
+	surf, err := grid.surface(g)
 	if err != nil {
 		return nil, fmt.Errorf("flux: internal error contouring the pattern: %v", err)
 	}

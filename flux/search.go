@@ -51,6 +51,9 @@ type denseGrid struct {
 	v     []float64 // values, len(colat)*nlon
 	dth   []float64 // df/dcolat per radian (nil unless derivatives asked)
 	dph   []float64 // df/dlon per radian
+	// ringA, ringB hold the Fourier coefficients of each ring,
+	// f = sum_m A_m cos(m lon) + B_m sin(m lon) (with derivatives only).
+	ringA, ringB [][]float64
 }
 
 // newDenseGrid samples the canonical expansion c on nr Gauss-Legendre rings
@@ -91,6 +94,10 @@ func newDenseGrid(c *sh.Coeffs, nr int, deriv bool) *denseGrid {
 				db[m] += c.S[k] * dp[k]
 			}
 		}
+		if deriv {
+			g.ringA = append(g.ringA, append([]float64(nil), a...))
+			g.ringB = append(g.ringB, append([]float64(nil), b...))
+		}
 		row := i * g.nlon
 		for j := 0; j < g.nlon; j++ {
 			f, ft, fp := 0.0, 0.0, 0.0
@@ -111,10 +118,19 @@ func newDenseGrid(c *sh.Coeffs, nr int, deriv bool) *denseGrid {
 	return g
 }
 
-// surface returns the grid as a contour.Surface (latitudes and derivatives
-// per degree).
-func (g *denseGrid) surface() (*contour.Surface, error) {
+// surface returns the grid of the expansion c as a contour.Surface
+// (latitudes and derivatives per degree), with the exact field along its
+// grid lines (gridLines) so that contour crossings carry no interpolation
+// error.
+func (g *denseGrid) surface(c *sh.Coeffs) (*contour.Surface, error) {
 	f := contour.Field{NLon: g.nlon, Values: g.v}
+	if g.ringA != nil {
+		lines, err := newGridLines(g, c.LMax)
+		if err != nil {
+			return nil, err
+		}
+		f.Lines = lines
+	}
 	f.Lat = make([]float64, len(g.colat))
 	for i, th := range g.colat {
 		f.Lat[i] = 90 - th*rad2deg

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 )
 
 // Field is a scalar field sampled on a longitude-latitude grid that is
@@ -30,6 +31,24 @@ type Field struct {
 	// interpolant of each grid edge (error O(h^4)) instead of on the linear
 	// interpolant (error O(h^2)).
 	DLon, DLat []float64
+	// Lines, when set with the derivatives, gives the field exactly along
+	// the grid lines; crossings are then located on it (to rounding) rather
+	// than on the interpolants, and the interpolants only screen edges for
+	// crossings.
+	Lines Lines
+}
+
+// Lines evaluates a field exactly along the lines of its grid, for
+// example from the Fourier series of a band-limited field along each
+// parallel and each meridian (great circle). Implementations must be safe
+// for concurrent use if the Surface is used concurrently.
+type Lines interface {
+	// Meridian returns the field and its derivative per degree of latitude
+	// on column j at latitude lat.
+	Meridian(j int, lat float64) (f, dfdlat float64)
+	// Parallel returns the field and its derivative per degree of
+	// longitude on row i (an index into Field.Lat) at longitude lon.
+	Parallel(i int, lon float64) (f, dfdlon float64)
 }
 
 // Surface is a Field prepared for repeated contouring at many levels. Its
@@ -52,6 +71,9 @@ type Surface struct {
 	bmax   []float64
 	barea  []float64
 	apex   [3]float64
+	lines  Lines
+	pool   sync.Pool // *scratch
+	src    []int     // row of Field.Lat for each row, -1 for an added pole
 }
 
 // ErrField is wrapped by the errors NewSurface returns for malformed fields.
@@ -104,6 +126,11 @@ func NewSurface(f Field) (*Surface, error) {
 	addRow = func(lat float64, src int, pole bool) {
 		s.lat = append(s.lat, lat)
 		if pole {
+			s.src = append(s.src, -1)
+		} else {
+			s.src = append(s.src, src)
+		}
+		if pole {
 			mean := 0.0
 			for j := 0; j < n; j++ {
 				mean += f.Values[src*n+j]
@@ -122,7 +149,9 @@ func NewSurface(f Field) (*Surface, error) {
 			// All columns of a pole row are one point: use one value so
 			// that no contour crosses the degenerate edges of the pole.
 			s.lat = s.lat[:len(s.lat)-1]
+			s.src = s.src[:len(s.src)-1]
 			addRow(lat, src, true)
+			s.src[len(s.src)-1] = src
 			if herm {
 				copy(s.dp[len(s.dp)-n:], f.DLat[src*n:(src+1)*n])
 			}
@@ -152,6 +181,8 @@ func NewSurface(f Field) (*Surface, error) {
 	}
 	if !herm {
 		s.dv, s.dp = nil, nil
+	} else {
+		s.lines = f.Lines
 	}
 	s.sinLat = make([]float64, rows)
 	s.cosLat = make([]float64, rows)
@@ -175,9 +206,10 @@ func NewSurface(f Field) (*Surface, error) {
 			j1 := min((b+1)*s.bw, n)
 			for j := b * s.bw; j <= j1; j++ {
 				jj := j % n
-				for _, x := range [2]float64{s.v[i*n+jj], s.v[(i+1)*n+jj]} {
-					lo = math.Min(lo, x)
-					hi = math.Max(hi, x)
+				for _, r := range [2]int{i, i + 1} {
+					x, e := s.v[r*n+jj], s.slack(r, i, jj, j < j1)
+					lo = math.Min(lo, x-e)
+					hi = math.Max(hi, x+e)
 				}
 			}
 			k := i*s.nb + b
@@ -193,6 +225,27 @@ func NewSurface(f Field) (*Surface, error) {
 	return s, nil
 }
 
+// slack returns how far the Hermite interpolants of the edges at node
+// (r, j) can leave the node values: 4/27 of the derivative terms (the
+// largest magnitude of the Hermite basis functions h10 and h11), summed over
+// the meridian edge of band i and, when par, the parallel edge eastward.
+func (s *Surface) slack(r, i, j int, par bool) float64 {
+	if s.dv == nil {
+		return 0
+	}
+	n := s.n
+	e := 0.0
+	if s.herm[i] {
+		dl := math.Abs(s.lat[i+1] - s.lat[i])
+		e += 4.0 / 27 * dl * (math.Abs(s.dp[i*n+j]) + math.Abs(s.dp[(i+1)*n+j]))
+	}
+	if par && s.cosLat[r] > 1e-12 {
+		j1 := (j + 1) % n
+		e = math.Max(e, 4.0/27*s.dlon*(math.Abs(s.dv[r*n+j])+math.Abs(s.dv[r*n+j1])))
+	}
+	return e
+}
+
 // crossing is a contour vertex on a grid edge.
 type crossing struct {
 	lon, lat float64
@@ -202,17 +255,28 @@ type crossing struct {
 	ge, gn float64
 }
 
-// hermiteRoot returns t in [0, 1] where the cubic Hermite interpolant of
-// (f0, d0) at 0 and (f1, d1) at 1 equals zero, given f0 and f1 of opposite
-// sign (or f0 == 0): safeguarded Newton from the linear estimate.
-func hermiteRoot(f0, f1, d0, d1 float64) float64 {
-	lo, hi := 0.0, 1.0
-	t := f0 / (f0 - f1)
-	up := f1 > f0 // the interpolant rises from 0 to 1
-	for range 20 {
-		t2, t3 := t*t, t*t*t
-		p := (2*t3-3*t2+1)*f0 + (t3-2*t2+t)*d0 + (-2*t3+3*t2)*f1 + (t3-t2)*d1
-		dp := (6*t2-6*t)*f0 + (3*t2-4*t+1)*d0 + (-6*t2+6*t)*f1 + (3*t2-2*t)*d1
+// hermite evaluates the cubic Hermite interpolant of (f0, d0) at 0 and
+// (f1, d1) at 1, and its derivative, at t.
+func hermite(f0, f1, d0, d1, t float64) (p, dp float64) {
+	t2, t3 := t*t, t*t*t
+	p = (2*t3-3*t2+1)*f0 + (t3-2*t2+t)*d0 + (-2*t3+3*t2)*f1 + (t3-t2)*d1
+	dp = (6*t2-6*t)*f0 + (3*t2-4*t+1)*d0 + (-6*t2+6*t)*f1 + (3*t2-2*t)*d1
+	return p, dp
+}
+
+// hermiteRoot returns t in [lo, hi] where the cubic Hermite interpolant is
+// zero, given values of opposite sign (or zero) at lo and hi: safeguarded
+// Newton from the linear estimate.
+func hermiteRoot(f0, f1, d0, d1, lo, hi float64) float64 {
+	plo, _ := hermite(f0, f1, d0, d1, lo)
+	phi, _ := hermite(f0, f1, d0, d1, hi)
+	up := phi > plo
+	t := lo + (hi-lo)*plo/(plo-phi)
+	if !(t >= lo && t <= hi) {
+		t = 0.5 * (lo + hi)
+	}
+	for range 30 {
+		p, dp := hermite(f0, f1, d0, d1, t)
 		if p == 0 {
 			return t
 		}
@@ -233,19 +297,101 @@ func hermiteRoot(f0, f1, d0, d1 float64) float64 {
 	return t
 }
 
-// meridianCrossing returns the crossing of level c on the edge of column j
-// between rows i and i+1.
-func (s *Surface) meridianCrossing(i, j int, c float64) crossing {
-	k0, k1 := i*s.n+j, (i+1)*s.n+j
-	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	var t float64
-	dl := s.lat[i+1] - s.lat[i]
-	if s.herm[i] {
-		t = hermiteRoot(f0, f1, s.dp[k0]*dl, s.dp[k1]*dl)
-	} else {
-		t = f0 / (f0 - f1)
+// edgeRoots returns the parameters (ascending) where the interpolant of an
+// edge with values f0, f1 (level subtracted) and derivatives d0, d1 (per
+// unit parameter) crosses zero, with "below" meaning negative: one root when
+// the ends are on opposite sides, and two when both ends are on one side but
+// the cubic dips across between them (a thin band or small region between
+// grid nodes). herm false means linear interpolation.
+func edgeRoots(f0, f1, d0, d1 float64, herm bool) (n int, t [2]float64, split float64) {
+	b0, b1 := f0 < 0, f1 < 0
+	if b0 != b1 {
+		if herm {
+			return 1, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, 1)}, 1
+		}
+		return 1, [2]float64{f0 / (f0 - f1)}, 1
 	}
-	lat := s.lat[i] + t*dl
+	if !herm {
+		return 0, t, 0
+	}
+	// Both ends on one side: can the cubic reach the other side?
+	e := 4.0 / 27 * (math.Abs(d0) + math.Abs(d1))
+	if b0 && math.Max(f0, f1)+e < 0 || !b0 && math.Min(f0, f1)-e >= 0 {
+		return 0, t, 0
+	}
+	// Critical points: p'(t) = a t^2 + b t + c.
+	a := 6*f0 + 3*d0 - 6*f1 + 3*d1
+	b := -6*f0 - 4*d0 + 6*f1 - 2*d1
+	c := d0
+	var cr [2]float64
+	nc := 0
+	if math.Abs(a) < 1e-300 {
+		if b != 0 {
+			cr[0], nc = -c/b, 1
+		}
+	} else if disc := b*b - 4*a*c; disc >= 0 {
+		q := -0.5 * (b + math.Copysign(math.Sqrt(disc), b))
+		cr[0], nc = q/a, 1
+		if q != 0 {
+			cr[1], nc = c/q, 2
+		}
+	}
+	for k := 0; k < nc; k++ {
+		tc := cr[k]
+		if !(tc > 0 && tc < 1) {
+			continue
+		}
+		if p, _ := hermite(f0, f1, d0, d1, tc); (p < 0) != b0 {
+			return 2, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, tc), hermiteRoot(f0, f1, d0, d1, tc, 1)}, tc
+		}
+	}
+	return 0, t, 0
+}
+
+// exactRoot returns the zero of the exact edge function at(t) (value minus
+// level and derivative per unit parameter) in [lo, hi], starting from the
+// interpolant's estimate t. The estimate is fourth-order accurate, so one
+// Newton step leaves an error of order its square; further steps are taken
+// only while the step exceeds 1e-4 of the edge (poor starts, as in dips).
+func exactRoot(at func(t float64) (f, df float64), t, lo, hi float64) float64 {
+	for range 6 {
+		f, df := at(t)
+		if f == 0 || df == 0 {
+			return t
+		}
+		nt := math.Min(hi, math.Max(lo, t-f/df))
+		if math.Abs(nt-t) < 1e-4 {
+			return nt
+		}
+		t = nt
+	}
+	return t
+}
+
+// exactCut turns the interpolant's roots ts (n of them, the two of a dip
+// split at split) into roots of the exact edge function at. A dip that the
+// exact function does not make (its value at the split is on the side of
+// the ends) is dropped.
+func exactCut(at func(t float64) (f, df float64), n int, ts [2]float64, split float64) (int, [2]float64) {
+	switch n {
+	case 1:
+		ts[0] = exactRoot(at, ts[0], 0, 1)
+	case 2:
+		f0, _ := at(0)
+		fs, _ := at(split)
+		if (fs < 0) == (f0 < 0) {
+			return 0, ts
+		}
+		ts[0], ts[1] = exactRoot(at, ts[0], 0, split), exactRoot(at, ts[1], split, 1)
+	}
+	return n, ts
+}
+
+// meridianAt returns the crossing at parameter t on the edge of column j
+// between rows i (t = 0) and i+1 (t = 1).
+func (s *Surface) meridianAt(i, j int, t float64) crossing {
+	k0, k1 := i*s.n+j, (i+1)*s.n+j
+	lat := s.lat[i] + t*(s.lat[i+1]-s.lat[i])
 	sp, cp := math.Sincos(lat * deg)
 	x := crossing{lon: s.lon0 + float64(j)*s.dlon, lat: lat,
 		x: [3]float64{cp * s.cosLon[j], cp * s.sinLon[j], sp}}
@@ -256,18 +402,11 @@ func (s *Surface) meridianCrossing(i, j int, c float64) crossing {
 	return x
 }
 
-// parallelCrossing returns the crossing of level c on the edge of row i
-// between columns j and j+1 (periodic).
-func (s *Surface) parallelCrossing(i, j int, c float64) crossing {
+// parallelAt returns the crossing at parameter t on the edge of row i
+// between columns j (t = 0) and j+1 (t = 1, periodic).
+func (s *Surface) parallelAt(i, j int, t float64) crossing {
 	j1 := (j + 1) % s.n
 	k0, k1 := i*s.n+j, i*s.n+j1
-	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	var t float64
-	if s.dv != nil && s.cosLat[i] > 1e-12 {
-		t = hermiteRoot(f0, f1, s.dv[k0]*s.dlon, s.dv[k1]*s.dlon)
-	} else {
-		t = f0 / (f0 - f1)
-	}
 	lon := s.lon0 + (float64(j)+t)*s.dlon
 	sl, cl := math.Sincos(lon * deg)
 	x := crossing{lon: lon, lat: s.lat[i],
@@ -279,102 +418,248 @@ func (s *Surface) parallelCrossing(i, j int, c float64) crossing {
 	return x
 }
 
+// edgeCut holds the crossings of one grid edge, in ascending parameter.
+type edgeCut struct {
+	id int // base identifier of the edge
+	n  int
+	x  [2]crossing
+}
+
+// meridianCut returns the crossings of level c on the edge of column j
+// between rows i and i+1.
+func (s *Surface) meridianCut(i, j int, c float64) edgeCut {
+	k0, k1 := i*s.n+j, (i+1)*s.n+j
+	e := edgeCut{id: 2 * (i*s.n + j)}
+	var d0, d1 float64
+	if s.herm[i] {
+		dl := s.lat[i+1] - s.lat[i]
+		d0, d1 = s.dp[k0]*dl, s.dp[k1]*dl
+	}
+	f0, f1 := s.v[k0]-c, s.v[k1]-c
+	n, ts, split := edgeRoots(f0, f1, d0, d1, s.herm[i])
+	e.n = n
+	if s.lines != nil && n > 0 {
+		dl := s.lat[i+1] - s.lat[i]
+		n, ts = exactCut(func(t float64) (float64, float64) {
+			v, dlat := s.lines.Meridian(j, s.lat[i]+t*dl)
+			return v - c, dlat * dl
+		}, n, ts, split)
+	}
+	for q := 0; q < n; q++ {
+		e.x[q] = s.meridianAt(i, j, ts[q])
+	}
+	return e
+}
+
+// parallelCut returns the crossings of level c on the edge of row i between
+// columns j and j+1.
+func (s *Surface) parallelCut(i, j int, c float64) edgeCut {
+	j1 := (j + 1) % s.n
+	k0, k1 := i*s.n+j, i*s.n+j1
+	e := edgeCut{id: 2*(i*s.n+j) + 1}
+	herm := s.dv != nil && s.cosLat[i] > 1e-12
+	var d0, d1 float64
+	if herm {
+		d0, d1 = s.dv[k0]*s.dlon, s.dv[k1]*s.dlon
+	}
+	f0, f1 := s.v[k0]-c, s.v[k1]-c
+	n, ts, split := edgeRoots(f0, f1, d0, d1, herm)
+	e.n = n
+	if s.lines != nil && herm && n > 0 && s.src[i] >= 0 {
+		r := s.src[i]
+		n, ts = exactCut(func(t float64) (float64, float64) {
+			v, dlon := s.lines.Parallel(r, s.lon0+(float64(j)+t)*s.dlon)
+			return v - c, dlon * s.dlon
+		}, n, ts, split)
+	}
+	for q := 0; q < n; q++ {
+		e.x[q] = s.parallelAt(i, j, ts[q])
+	}
+	return e
+}
+
+// edgeValue returns the interpolant of the field at parameter t of the
+// meridian edge of column j between rows i and i+1, or of the parallel edge
+// of row i between columns j and j+1 (par).
+func (s *Surface) edgeValue(par bool, i, j int, t float64) float64 {
+	n := s.n
+	var k0, k1 int
+	var d0, d1 float64
+	herm := false
+	if par {
+		k0, k1 = i*n+j, i*n+(j+1)%n
+		if s.dv != nil && s.cosLat[i] > 1e-12 {
+			herm, d0, d1 = true, s.dv[k0]*s.dlon, s.dv[k1]*s.dlon
+		}
+	} else {
+		k0, k1 = i*n+j, (i+1)*n+j
+		if s.herm[i] {
+			dl := s.lat[i+1] - s.lat[i]
+			herm, d0, d1 = true, s.dp[k0]*dl, s.dp[k1]*dl
+		}
+	}
+	if !herm {
+		return s.v[k0] + t*(s.v[k1]-s.v[k0])
+	}
+	p, _ := hermite(s.v[k0], s.v[k1], d0, d1, t)
+	return p
+}
+
+// coons returns the Coons patch of cell (i, j) (bilinearly blended edge
+// interpolants, Coons 1967) at cell coordinates u (west 0 to east 1) and
+// v (south 0 to north 1).
+func (s *Surface) coons(i, j, j1 int, u, v float64) float64 {
+	n := s.n
+	bl, br, tr, tl := s.v[(i+1)*n+j], s.v[(i+1)*n+j1], s.v[i*n+j1], s.v[i*n+j]
+	pb := s.edgeValue(true, i+1, j, u)
+	pt := s.edgeValue(true, i, j, u)
+	pl := s.edgeValue(false, i, j, 1-v)
+	pr := s.edgeValue(false, i, j1, 1-v)
+	b := (1-u)*(1-v)*bl + u*(1-v)*br + u*v*tr + (1-u)*v*tl
+	return (1-v)*pb + v*pt + (1-u)*pl + u*pr - b
+}
+
 // segment is an oriented piece of contour with the region below the level on
-// its left, from the crossing on grid edge from to the one on grid edge to.
+// its left, from the crossing with identifier from to the one with
+// identifier to (identifiers are 2*edge + index of the crossing on the edge).
 type segment struct {
 	from, to int
 	a, b     crossing
 }
 
+// scratch holds the cuts of the bottom edges of the previous and current
+// band, so that each parallel edge is cut once per level. Stamps carry a
+// per-call generation so that stale entries never match.
+type scratch struct {
+	gen   int64
+	cut   [2][]edgeCut
+	stamp [2][]int64
+}
+
+var scratchGen struct {
+	sync.Mutex
+	n int64
+}
+
+func (s *Surface) getScratch() *scratch {
+	sc, _ := s.pool.Get().(*scratch)
+	if sc == nil {
+		sc = &scratch{}
+		for k := range 2 {
+			sc.cut[k] = make([]edgeCut, s.n)
+			sc.stamp[k] = make([]int64, s.n)
+		}
+	}
+	scratchGen.Lock()
+	scratchGen.n += int64(len(s.lat)) + 2
+	sc.gen = scratchGen.n
+	scratchGen.Unlock()
+	return sc
+}
+
+// edgeMemo remembers the cut of the right edge of the last cell, which is
+// the left edge of the next cell in the same band.
+type edgeMemo struct {
+	ok  bool
+	cut edgeCut
+}
+
 // cellSegments stores the segments of cell (i, j) at level c in out and
-// returns their number (0, 1 or 2).
-func (s *Surface) cellSegments(out *[2]segment, memo *edgeMemo, i, j int, c float64) int {
+// returns their number (0 to 4).
+func (s *Surface) cellSegments(out *[4]segment, memo *edgeMemo, sc *scratch, i, j int, c float64) int {
 	n := s.n
 	j1 := j + 1
 	if j1 == n {
 		j1 = 0
 	}
 	// Corners counter-clockwise seen from outside (east = right, north = up):
-	// BL, BR, TR, TL.
+	// BL, BR, TR, TL; edge k joins corner k to corner k+1.
 	v := [4]float64{s.v[(i+1)*n+j], s.v[(i+1)*n+j1], s.v[i*n+j1], s.v[i*n+j]}
-	var below [4]bool
-	nb := 0
-	for k, x := range v {
-		below[k] = x < c
-		if below[k] {
-			nb++
+	var cuts [4]edgeCut
+	cur, prev := i&1, 1-i&1
+	cuts[0] = s.parallelCut(i+1, j, c)
+	sc.cut[cur][j], sc.stamp[cur][j] = cuts[0], sc.gen+int64(i)+1
+	cuts[1] = s.meridianCut(i, j1, c)
+	if sc.stamp[prev][j] == sc.gen+int64(i) {
+		cuts[2] = sc.cut[prev][j] // the bottom edge of the cell above
+	} else {
+		cuts[2] = s.parallelCut(i, j, c)
+	}
+	if memo.ok && memo.cut.id == 2*(i*n+j) {
+		cuts[3] = memo.cut
+	} else {
+		cuts[3] = s.meridianCut(i, j, c)
+	}
+	memo.ok, memo.cut = true, cuts[1]
+	// Crossings in counter-clockwise order. Edges 1 (BR -> TR) and 2
+	// (TR -> TL) run against their parameter.
+	type cx struct {
+		id   int
+		x    *crossing
+		down bool // below -> above when walking counter-clockwise
+	}
+	var ring [8]cx
+	nr := 0
+	uc, vc := 0.0, 0.0 // mean crossing position in cell coordinates
+	for k := 0; k < 4; k++ {
+		e := &cuts[k]
+		below := v[k] < c
+		for q := 0; q < e.n; q++ {
+			r := q
+			if k == 1 || k == 2 {
+				r = e.n - 1 - q
+			}
+			ring[nr] = cx{2*e.id + r, &e.x[r], below}
+			below = !below
+			nr++
+			if k == 0 || k == 2 {
+				uc += (e.x[r].lon - s.lon0 - float64(j)*s.dlon) / s.dlon
+				if k == 2 {
+					vc++
+				}
+			} else {
+				if k == 1 {
+					uc++
+				}
+				vc += (e.x[r].lat - s.lat[i+1]) / (s.lat[i] - s.lat[i+1])
+			}
 		}
 	}
-	if nb == 0 || nb == 4 {
+	if nr == 0 {
 		return 0
 	}
-	var ks [4]int // crossed edges in counter-clockwise order
-	nk := 0
-	for k := range 4 {
-		if below[k] != below[(k+1)&3] {
-			ks[nk] = k
-			nk++
-		}
+	// Two or four crossings in the usual cases; with four or more the
+	// pairing follows the side of the cell's interpolant at the mean of the
+	// crossings (the centre for an ordinary saddle, the middle of a thin
+	// band that dips between the nodes).
+	centreBelow := true
+	if nr > 2 {
+		centreBelow = s.coons(i, j, j1, uc/float64(nr), vc/float64(nr)) < c
 	}
-	centreBelow := (v[0]+v[1]+v[2]+v[3])/4 < c
 	ns := 0
-	for q := 0; q < nk; q++ {
-		k := ks[q]
-		if !below[k] { // not a below -> above transition
+	for q := 0; q < nr; q++ {
+		if !ring[q].down {
 			continue
 		}
 		var r int
-		if nk == 2 || centreBelow {
-			r = ks[(q+1)%nk]
+		if nr == 2 || centreBelow {
+			r = (q + 1) % nr
 		} else {
-			r = ks[(q+nk-1)%nk]
+			r = (q + nr - 1) % nr
 		}
-		g := &out[ns]
-		g.from, g.a = s.cachedCrossing(memo, k, i, j, j1, c)
-		g.to, g.b = s.cachedCrossing(memo, r, i, j, j1, c)
+		out[ns] = segment{from: ring[q].id, to: ring[r].id, a: *ring[q].x, b: *ring[r].x}
 		ns++
 	}
 	return ns
 }
 
-// edgeMemo remembers the crossing on the right edge of the last cell, which
-// is the left edge of the next cell in the same band.
-type edgeMemo struct {
-	id int
-	x  crossing
-}
-
-func (s *Surface) cachedCrossing(memo *edgeMemo, k, i, j, j1 int, c float64) (int, crossing) {
-	if k == 3 && memo.id == 2*(i*s.n+j) {
-		return memo.id, memo.x
-	}
-	id, x := s.edgeCrossing(k, i, j, j1, c)
-	if k == 1 {
-		memo.id, memo.x = id, x
-	}
-	return id, x
-}
-
-// edgeCrossing returns the identifier and crossing of edge k (0 bottom,
-// 1 right, 2 top, 3 left) of cell (i, j); j1 is the next column.
-func (s *Surface) edgeCrossing(k, i, j, j1 int, c float64) (int, crossing) {
-	n := s.n
-	switch k {
-	case 0:
-		return 2*((i+1)*n+j) + 1, s.parallelCrossing(i+1, j, c)
-	case 1:
-		return 2 * (i*n + j1), s.meridianCrossing(i, j1, c)
-	case 2:
-		return 2*(i*n+j) + 1, s.parallelCrossing(i, j, c)
-	}
-	return 2 * (i*n + j), s.meridianCrossing(i, j, c)
-}
-
 // visit calls fn for every contour segment at level c and returns an
 // estimate of the area below c (exact when there are no segments).
 func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int) {
-	var out [2]segment
-	memo := edgeMemo{id: -1}
+	var out [4]segment
+	var memo edgeMemo
+	sc := s.getScratch()
+	defer s.pool.Put(sc)
 	for i := 0; i < len(s.lat)-1; i++ {
 		for b := 0; b < s.nb; b++ {
 			k := i*s.nb + b
@@ -387,7 +672,7 @@ func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int)
 			}
 			est += 0.5 * s.barea[k]
 			for j := b * s.bw; j < min((b+1)*s.bw, s.n); j++ {
-				ns := s.cellSegments(&out, &memo, i, j, c)
+				ns := s.cellSegments(&out, &memo, sc, i, j, c)
 				for q := 0; q < ns; q++ {
 					fn(&out[q])
 				}

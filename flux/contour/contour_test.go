@@ -261,3 +261,58 @@ func BenchmarkAreaBelow(b *testing.B) {
 		s.AreaBelow(-0.7)
 	}
 }
+
+// bandLines gives f = (z - z0)^2 exactly along grid lines (z = sin lat).
+type bandLines struct {
+	z0  float64
+	lat []float64
+}
+
+func (b bandLines) Meridian(j int, lat float64) (float64, float64) {
+	z := math.Sin(lat * deg)
+	return (z - b.z0) * (z - b.z0), 2 * (z - b.z0) * math.Cos(lat*deg) * deg
+}
+
+func (b bandLines) Parallel(i int, lon float64) (float64, float64) {
+	z := math.Sin(b.lat[i] * deg)
+	return (z - b.z0) * (z - b.z0), 0
+}
+
+func TestThinBandBetweenRows(t *testing.T) {
+	// f = (z - z0)^2 is below e^2 on the zone |z - z0| < e, of area
+	// 2 pi * 2e (Archimedes, closed form). With z0 between two rows and the
+	// zone thinner than the row spacing no node lies below the level: the
+	// band must be found from the derivatives (a dip of the interpolant on
+	// the meridian edges), and located exactly with Lines.
+	const nlat, nlon = 60, 120 // rows every 3 degrees
+	f := Field{NLon: nlon}
+	for i := range nlat {
+		f.Lat = append(f.Lat, 90-180*(float64(i)+0.5)/nlat)
+	}
+	z0 := math.Sin(31.5 * deg) // half way between the rows at 31.5 +- 1.5
+	for _, la := range f.Lat {
+		z := math.Sin(la * deg)
+		for range nlon {
+			f.Values = append(f.Values, (z-z0)*(z-z0))
+			f.DLon = append(f.DLon, 0)
+			f.DLat = append(f.DLat, 2*(z-z0)*math.Cos(la*deg)*deg)
+		}
+	}
+	e := 0.5 * (math.Sin(33*deg) - math.Sin(30*deg)) * 0.6 // 60 % of the gap
+	want := 2 * math.Pi * 2 * e
+	s, err := NewSurface(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := s.AreaBelow(e * e); math.Abs(got-want)/(4*math.Pi) > 1e-3 {
+		t.Errorf("interpolated: band area %g, want %g", got, want)
+	}
+	f.Lines = bandLines{z0, f.Lat}
+	s, _ = NewSurface(f)
+	if got := s.AreaBelow(e * e); math.Abs(got-want)/(4*math.Pi) > 1e-9 {
+		t.Errorf("with Lines: band area %.12g, want %.12g", got, want)
+	}
+	if r := s.Rings(e * e); len(r) != 2 {
+		t.Errorf("%d rings, want 2", len(r))
+	}
+}

@@ -30,7 +30,9 @@ type CoeffReadOptions struct {
 	Conv *sh.Convention
 	// Complex declares that a table without a cmbflux header holds the
 	// complex form "l m re im" (m = 0..l, or -l..l with
-	// c_l,-m = conj(c_lm)) in the normalization of Conv (see doc.go).
+	// c_l,-m = s_m conj(c_lm), s_m = (-1)^m with the Condon-Shortley phase
+	// and 1 without) in the convention of Conv (see the package
+	// documentation).
 	Complex bool
 }
 

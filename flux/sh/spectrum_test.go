@@ -63,4 +63,3 @@ func TestPowerSpectrumParseval(t *testing.T) {
 		t.Errorf("S_5 = %.16g, integral of the degree-5 part squared = %.16g", s, w5)
 	}
 }
-

@@ -7,7 +7,9 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"runtime"
 	"strings"
+	"sync"
 
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -235,14 +237,50 @@ type sampled struct {
 	noData bool
 }
 
-// sample evaluates the field at every pixel centre of the raster.
+// sample evaluates the field at every pixel centre of the raster. A Grid
+// is sampled by several goroutines, a Field by one, as documented.
 func (m *Map) sample(l *mapLayout) (*sampled, error) {
 	f, err := m.sampler()
 	if err != nil {
 		return nil, err
 	}
 	s := &sampled{vals: make([]float64, l.nx*l.ny)}
-	for r := range l.ny {
+	workers := 1
+	if m.Grid != nil {
+		workers = max(1, min(runtime.GOMAXPROCS(0), 8, l.ny/16))
+	}
+	parts := make([]sampled, workers)
+	errs := make([]error, workers)
+	var wg sync.WaitGroup
+	for k := range workers {
+		r0, r1 := k*l.ny/workers, (k+1)*l.ny/workers
+		wg.Go(func() { errs[k] = sampleRows(l, f, s.vals, r0, r1, &parts[k]) })
+	}
+	wg.Wait()
+	// Merge in row order: ties go to the first pixel in scan order, as
+	// with one goroutine, so the result does not depend on the split.
+	for k, p := range parts {
+		if errs[k] != nil {
+			return nil, errs[k]
+		}
+		s.noData = s.noData || p.noData
+		if p.hi.ok && (!s.hi.ok || p.hi.v > s.hi.v) {
+			s.hi = p.hi
+		}
+		if p.lo.ok && (!s.lo.ok || p.lo.v < s.lo.v) {
+			s.lo = p.lo
+		}
+	}
+	if m.Grid != nil {
+		s.hi, s.lo = gridExtrema(m.Grid)
+	}
+	return s, nil
+}
+
+// sampleRows samples raster rows [r0, r1) into vals and records their
+// extrema and missing data in p.
+func sampleRows(l *mapLayout, f func(lon, lat float64) float64, vals []float64, r0, r1 int, p *sampled) error {
+	for r := r0; r < r1; r++ {
 		y := (float64(l.y0+l.ny-r) - 0.5 - l.cy) / l.scale
 		for c := range l.nx {
 			x := (float64(l.x0+c) + 0.5 - l.cx) / l.scale
@@ -252,25 +290,22 @@ func (m *Map) sample(l *mapLayout) (*sampled, error) {
 				v = f(lon, lat)
 				switch {
 				case math.IsNaN(v):
-					s.noData = true
+					p.noData = true
 				case math.IsInf(v, 0):
-					return nil, fmt.Errorf("figure: field is %v at (%g, %g)", v, lon, lat)
+					return fmt.Errorf("figure: field is %v at (%g, %g)", v, lon, lat)
 				default:
-					if !s.hi.ok || v > s.hi.v {
-						s.hi = extremum{lon, lat, v, true}
+					if !p.hi.ok || v > p.hi.v {
+						p.hi = extremum{lon, lat, v, true}
 					}
-					if !s.lo.ok || v < s.lo.v {
-						s.lo = extremum{lon, lat, v, true}
+					if !p.lo.ok || v < p.lo.v {
+						p.lo = extremum{lon, lat, v, true}
 					}
 				}
 			}
-			s.vals[r*l.nx+c] = v
+			vals[r*l.nx+c] = v
 		}
 	}
-	if m.Grid != nil {
-		s.hi, s.lo = gridExtrema(m.Grid)
-	}
-	return s, nil
+	return nil
 }
 
 // image colours the samples, hatched below the given values; pixels

@@ -1,9 +1,11 @@
 package figure
 
 import (
+	"bytes"
 	"image/color"
 	"io"
 	"math"
+	"runtime"
 	"testing"
 )
 
@@ -57,4 +59,21 @@ func TestPanelSharedScale(t *testing.T) {
 // returned by color.Color.RGBA, for opaque colours.
 func rgba8(r, g, b uint32) color.RGBA {
 	return color.RGBA{R: uint8(r >> 8), G: uint8(g >> 8), B: uint8(b >> 8), A: 0xff}
+}
+
+// TestDeterministicAcrossProcs checks that the parallel sampling of grids
+// gives the same bytes whatever the number of processors.
+func TestDeterministicAcrossProcs(t *testing.T) {
+	m := demoMap()
+	prev := runtime.GOMAXPROCS(1)
+	one, err := PNG(m)
+	runtime.GOMAXPROCS(4)
+	four, err2 := PNG(m)
+	runtime.GOMAXPROCS(prev)
+	if err != nil || err2 != nil {
+		t.Fatal(err, err2)
+	}
+	if !bytes.Equal(one, four) {
+		t.Error("map differs between GOMAXPROCS 1 and 4")
+	}
 }

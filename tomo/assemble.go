@@ -39,8 +39,18 @@ func (t *coordTable) id(v float64, rec int) uint32 {
 		v = 0 // fold -0 into +0
 	}
 	bits := math.Float64bits(v)
-	if t.have && bits == t.lastBits {
-		return t.lastID
+	if t.have {
+		if bits == t.lastBits {
+			return t.lastID
+		}
+		// Files usually cycle through a coordinate in order: try the value
+		// after the last one, then the first, before the map.
+		for _, n := range [2]uint32{t.lastID + 1, 0} {
+			if int(n) < len(t.vals) && math.Float64bits(t.vals[n]) == bits {
+				t.lastBits, t.lastID = bits, n
+				return n
+			}
+		}
 	}
 	id, ok := t.index[bits]
 	if !ok {

@@ -139,7 +139,11 @@ func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
 		}
 		dep := 0.0
 		if plan.vert >= 0 {
-			if dep, err = coordField(name, lineNo, fields[plan.vert], plan.vert, map[bool]string{true: "radius", false: "depth"}[plan.radius]); err != nil {
+			what := "depth"
+			if plan.radius {
+				what = "radius"
+			}
+			if dep, err = coordField(name, lineNo, fields[plan.vert], plan.vert, what); err != nil {
 				return nil, err
 			}
 			dep /= plan.vertPerKm

@@ -50,6 +50,8 @@ func TestBadInput(t *testing.T) {
 		{"hdf5.nc", 0, []string{"netCDF-4 (HDF5)", "nccopy -k classic in.nc out.nc"}},
 		{"implausible-amplitude.txt", 0, []string{"1 values exceed the plausible 20 %", "largest 35 % at lon 225, lat 45", "force"}},
 		{"undeclared-sentinel.txt", 0, []string{"3 values exceed", "the value -9999 occurs 3 times", "# missing: -9999"}},
+		{"utf16.txt", 0, []string{"encoded as UTF-16", "save it as UTF-8"}},
+		{"corrupt.txt.gz", 0, []string{"gzip-compressed but cannot be decompressed"}},
 		{"unknown-units.csv", 0, []string{`units "furlongs" are not understood`}},
 		{"absolute-no-reference.txt", 0, []string{"need a reference velocity"}},
 	}

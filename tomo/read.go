@@ -2,6 +2,7 @@ package tomo
 
 import (
 	"bytes"
+	"compress/gzip"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
@@ -18,6 +19,9 @@ const (
 	// HDF5 format specification (The HDF Group): the superblock signature
 	// used by netCDF-4 files.
 	hdf5Magic = "\x89HDF\r\n\x1a\n"
+	// gzip file format (RFC 1952): ID1 ID2 = 0x1f 0x8b, then the method 8
+	// (deflate).
+	gzipMagic = "\x1f\x8b\x08"
 )
 
 // ReadFile reads a tomography grid from the file at path, or from standard
@@ -58,8 +62,22 @@ func Read(name string, r io.Reader, opts ReadOptions) (*Grid, error) {
 // "CDF\x01", "CDF\x02" or "CDF\x05"; a netCDF-4 (HDF5) file is refused
 // with advice to convert it; CSV when the first line that is neither blank
 // nor a '#' comment contains a comma; whitespace-separated text otherwise.
-// Source records name, the sha256 of data and the format.
+// A gzip-compressed file (RFC 1952) is decompressed first; a UTF-16 file
+// is refused with advice. Source records name, the sha256 of data (as
+// given, compressed or not) and the format.
 func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
+	raw := data
+	var notes []string
+	if bytes.HasPrefix(data, []byte(gzipMagic)) {
+		zr, err := gzip.NewReader(bytes.NewReader(data))
+		if err == nil {
+			data, err = io.ReadAll(zr)
+		}
+		if err != nil {
+			return nil, inputErr(name, 0, "the file looks gzip-compressed but cannot be decompressed: %v", err)
+		}
+		notes = append(notes, "decompressed from gzip (the sha256 is of the compressed file)")
+	}
 	format := opts.Format
 	if format == "" {
 		format = DetectFormat(data)
@@ -69,6 +87,8 @@ func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	switch format {
 	case "hdf5":
 		return nil, inputErr(name, 0, "this is a netCDF-4 (HDF5) file, which cmbflux does not read; convert it to netCDF classic with `nccopy -k classic in.nc out.nc` (or `nccopy -k cdf5` for 64-bit data) from the standard netCDF utilities")
+	case "utf16":
+		return nil, inputErr(name, 0, "the file is encoded as UTF-16; save it as UTF-8 (or plain ASCII) text")
 	case "netcdf":
 		g, err = ReadNetCDF(name, data, opts)
 	case "text":
@@ -81,23 +101,29 @@ func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	if err != nil {
 		return nil, err
 	}
-	sum := sha256.Sum256(data)
+	sum := sha256.Sum256(raw)
 	g.Source.Path = name
 	g.Source.SHA256 = hex.EncodeToString(sum[:])
 	if g.Source.Format == "" {
 		g.Source.Format = format
 	}
+	g.Notes = append(notes, g.Notes...)
 	return g, nil
 }
 
 // DetectFormat names the format of a file from its first bytes: "netcdf",
-// "hdf5", "csv" or "text", by the rules documented on ReadBytes.
+// "hdf5", "utf16", "csv" or "text", by the rules documented on ReadBytes
+// (it does not look inside gzip-compressed data).
 func DetectFormat(data []byte) string {
 	if len(data) >= 4 && string(data[:3]) == netcdfMagic && (data[3] == 1 || data[3] == 2 || data[3] == 5) {
 		return "netcdf"
 	}
 	if bytes.HasPrefix(data, []byte(hdf5Magic)) {
 		return "hdf5"
+	}
+	// Byte-order marks of UTF-16 (The Unicode Standard, section 23.8).
+	if bytes.HasPrefix(data, []byte("\xff\xfe")) || bytes.HasPrefix(data, []byte("\xfe\xff")) {
+		return "utf16"
 	}
 	for rest := data; len(rest) > 0; {
 		line := rest

@@ -2,12 +2,14 @@ package tomo
 
 import (
 	"bytes"
+	"compress/gzip"
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -515,5 +517,39 @@ func TestReadDepthInMetresAndLatitudeOrder(t *testing.T) {
 	// Swapped columns get a hint.
 	if _, err := ReadText("s.txt", []byte("45 200 1\n"), ReadOptions{}); err == nil || !strings.Contains(err.Error(), "swapped") {
 		t.Errorf("swapped columns: %v", err)
+	}
+}
+
+// TestReadGzip reads the demo text compressed with GNU gzip (Debian
+// package gzip, an implementation of RFC 1952 independent of ours) when
+// it is installed, else with the standard library's compress/gzip.
+func TestReadGzip(t *testing.T) {
+	path := filepath.Join("..", "testdata", "demo", "brindle.txt")
+	plain, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var packed []byte
+	if gz, err := exec.LookPath("gzip"); err == nil {
+		if packed, err = exec.Command(gz, "-c", "-9", path).Output(); err != nil {
+			t.Fatal(err)
+		}
+	} else {
+		var buf bytes.Buffer
+		zw := gzip.NewWriter(&buf)
+		zw.Write(plain)
+		zw.Close()
+		packed = buf.Bytes()
+	}
+	g, err := ReadBytes("brindle.txt.gz", packed, ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(g.Values, Demo().Values) || g.Source.Format != "text" || !containsAny(g.Notes, "decompressed from gzip") {
+		t.Errorf("gzip: format %q notes %q", g.Source.Format, g.Notes)
+	}
+	sum := sha256.Sum256(packed)
+	if g.Source.SHA256 != hex.EncodeToString(sum[:]) {
+		t.Error("sha256 is not that of the compressed bytes")
 	}
 }

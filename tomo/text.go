@@ -41,6 +41,7 @@ import (
 // steps in longitude, labelled node) is still described correctly by
 // them; consumers should use Lon and Lat rather than infer them from Reg.
 func ReadText(name string, data []byte, opts ReadOptions) (*Grid, error) {
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")) // UTF-8 byte-order mark
 	b := &builder{file: name, missing: append([]float64(nil), opts.Missing...)}
 	b.line = func(rec int) int { return textRecordLine(data, rec) }
 	b.reserve(bytes.Count(data, []byte{'\n'}) + 1)

@@ -89,7 +89,7 @@ var errBadInput = errors.New("bad input")
 // or reported by a reader without a sentinel; it maps to exit status 2.
 type inputError struct{ err error }
 
-func (e *inputError) Error() string { return e.err.Error() }
+func (e *inputError) Error() string   { return e.err.Error() }
 func (e *inputError) Unwrap() []error { return []error{e.err, errBadInput} }
 
 // inputErrorf returns an error about an input file that maps to status 2.

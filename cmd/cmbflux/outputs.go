@@ -12,6 +12,7 @@ import (
 	"cmbflux/cmd/cmbflux/internal/outdir"
 	"cmbflux/export"
 	"cmbflux/export/figure"
+	"cmbflux/flux"
 	"cmbflux/flux/contour"
 	"cmbflux/flux/sh"
 )
@@ -123,7 +124,7 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 
 // outputGrid samples the output quantity on the --grid grid.
 func outputGrid(sp *config.Spec, pt *pattern, f *field) *export.Grid {
-	g := pt.grid
+	g, _ := parseGrid(sp.Grid) // checked by validateSpec
 	vals := sh.NewTransform(f.out.LMax, g).Synthesis(nil, f.out)
 	eg := &export.Grid{Values: vals, Name: strings.ReplaceAll(sp.Quantity, "-", "_")}
 	switch g.Kind {
@@ -149,12 +150,13 @@ func outputGrid(sp *config.Spec, pt *pattern, f *field) *export.Grid {
 // 1-degree grid.
 func outlines(sp *config.Spec, pt *pattern, f *field) []export.Outline {
 	g := sh.NewLonLat(181, 360, sh.NodeRegistered)
-	dvs := sh.NewTransform(pt.dvs.LMax, g).Synthesis(nil, pt.dvs) // dlnVs fraction, mean kept
+	pc := pt.flux.Coeffs()
+	pc.C[0] = pt.mean * math.Sqrt(4*math.Pi)
+	dvs := sh.NewTransform(pc.LMax, g).Synthesis(nil, pc) // dlnVs fraction, mean kept
 	lat := make([]float64, 181)
 	for i := range lat {
 		lat[i] = 90 - float64(i)
 	}
-	mean := pt.dvs.C[0] / math.Sqrt(4*math.Pi)
 	below := func(name string, level float64, vals []float64, props map[string]any) export.Outline {
 		rings, err := contour.Below(contour.Field{Lon0: 0, NLon: 360, Lat: lat, Values: vals}, level)
 		if err != nil {
@@ -167,14 +169,13 @@ func outlines(sp *config.Spec, pt *pattern, f *field) []export.Outline {
 		return export.Outline{Rings: rings, Props: p}
 	}
 	var out []export.Outline
-	if sp.Quantity != "dvs" {
-		q := make([]float64, len(dvs))
-		for i, v := range dvs {
-			q[i] = f.q0 + f.amp*(v-mean)
-		}
-		out = append(out, below("negative heat flux", 0, q, map[string]any{"level_mw_m2": 0}))
-		if sp.HasQAd {
-			out = append(out, below("sub-adiabatic heat flux", sp.QAd, q, map[string]any{"level_mw_m2": sp.QAd * 1e3}))
+	if f.res != nil {
+		q, err := f.res.OnGrid(flux.HeatFlux, g)
+		if err == nil {
+			out = append(out, below("negative heat flux", 0, q, map[string]any{"level_mw_m2": 0}))
+			if sp.HasQAd {
+				out = append(out, below("sub-adiabatic heat flux", sp.QAd, q, map[string]any{"level_mw_m2": sp.QAd * 1e3}))
+			}
 		}
 	}
 	out = append(out, below("dVs below -1 %", -0.01, dvs, map[string]any{"level_percent": -1.0}))

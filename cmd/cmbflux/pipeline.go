@@ -12,6 +12,7 @@ import (
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
 	"cmbflux/export"
+	"cmbflux/flux"
 	"cmbflux/flux/sh"
 	"cmbflux/tomo"
 )
@@ -110,94 +111,41 @@ func wrapInput(file string, err error) error {
 	return &tomo.InputError{File: file, Err: err}
 }
 
-// pattern is the tapered, truncated, rotated expansion of dlnVs, with the
-// field of the pattern (degree 0 removed) on the diagnostic grid.
+// pattern is the flux pattern of one input layer, degree, taper and
+// rotation: everything that does not depend on the amplitude.
 type pattern struct {
-	dvs   *sh.Coeffs // canonical, degree 0 = layer mean
-	grid  *sh.Grid
-	field []float64 // dlnVs minus its mean on grid (fraction)
-	area  []float64 // area weight per ring, summing to 1 over the grid
-	pmin  float64
-	pmax  float64
-	imin  int // grid index of pmin
-	imax  int
-	rms   float64
+	flux *flux.Pattern
+	mean float64 // area mean of dlnVs of the layer (fraction), degree 0 of the fit
 }
 
 func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
-	expKey := "expansion " + sourceKey(sp) + fmt.Sprintf(" lmax=%d", sp.LMax)
-	v, err := c.get(expKey, func() (any, error) { return fitLayer(src.layer, sp.LMax) })
+	fitDeg := max(sp.LMax, 1)
+	expKey := "expansion " + sourceKey(sp) + fmt.Sprintf(" lmax=%d", fitDeg)
+	v, err := c.get(expKey, func() (any, error) { return fitLayer(src.layer, fitDeg) })
 	if err != nil {
 		return nil, err
 	}
 	raw := v.(*sh.Coeffs)
-	key := expKey + fmt.Sprintf(" taper=%s rotate=%g grid=%s", sp.Taper, sp.Rotate, sp.Grid)
+	key := expKey + fmt.Sprintf(" taper=%s rotate=%g", sp.Taper, sp.Rotate)
 	v, err = c.get(key, func() (any, error) {
 		tw, err := taperWeights(sp.Taper, sp.LMax)
 		if err != nil {
 			return nil, err
 		}
-		d := raw.Clone()
-		for l := 0; l <= d.LMax; l++ {
-			for m := 0; m <= l; m++ {
-				i := sh.Index(l, m)
-				d.C[i] *= tw[l]
-				d.S[i] *= tw[l]
-			}
-		}
+		d := raw
 		if sp.Rotate != 0 {
 			d = d.ShiftLongitude(sp.Rotate * math.Pi / 180)
 		}
-		g, err := parseGrid(sp.Grid)
+		fp, err := flux.NewPattern(d, &flux.PatternOptions{LMax: sp.LMax, Taper: tw, TaperName: sp.Taper, ResolvedLMax: src.safe.Lmax})
 		if err != nil {
-			return nil, err
+			return nil, wrapInput(src.name, err)
 		}
-		p := d.Clone()
-		p.C[0] = 0
-		tr := sh.NewTransform(sp.LMax, g)
-		field := tr.Synthesis(nil, p)
-		pt := &pattern{dvs: d, grid: g, field: field, area: ringAreas(g)}
-		pt.pmin, pt.pmax = math.Inf(1), math.Inf(-1)
-		var ss float64
-		for i, f := range field {
-			if f < pt.pmin {
-				pt.pmin, pt.imin = f, i
-			}
-			if f > pt.pmax {
-				pt.pmax, pt.imax = f, i
-			}
-			ss += pt.area[i/g.NLon] * f * f
-		}
-		pt.rms = math.Sqrt(ss)
-		return pt, nil
+		return &pattern{flux: fp, mean: d.C[0] / math.Sqrt(4*math.Pi)}, nil
 	})
 	if err != nil {
 		return nil, err
 	}
 	return v.(*pattern), nil
-}
-
-// ringAreas returns the fraction of the sphere's area that each sample of
-// ring i stands for (so that the sum over all samples is 1).
-func ringAreas(g *sh.Grid) []float64 {
-	w := g.AreaWeights()
-	out := make([]float64, len(w))
-	var s float64
-	for _, x := range w {
-		s += x * float64(g.NLon)
-	}
-	for i, x := range w {
-		out[i] = x / s
-	}
-	return out
-}
-
-// lonlatOf returns the longitude and latitude in degrees of grid sample i.
-func lonlatOf(g *sh.Grid, i int) (lon, lat float64) {
-	r, j := i/g.NLon, i%g.NLon
-	lon = math.Mod(g.Lon(j)*180/math.Pi, 360)
-	lat = 90 - g.Colat[r]*180/math.Pi
-	return round6(lon), round6(lat)
 }
 
 func round6(x float64) float64 {
@@ -268,147 +216,113 @@ func outputConvention(sp *config.Spec) (sh.Convention, error) {
 	return sh.Convention{Norm: n, CondonShortley: sp.CondonShortley}, nil
 }
 
-// field is a boundary condition: the output quantity's coefficients and the
-// total heat flux on the diagnostic grid.
+// field is a boundary condition: the flux package's result and the output
+// quantity's coefficients in the units written.
 type field struct {
-	out   *sh.Coeffs // canonical, in the output units
+	res   *flux.Result // nil for --quantity dvs
+	out   *sh.Coeffs   // canonical, in the output units
 	units string
 	what  string // quantity in words
 	sign  string
-	q0    float64 // mean flux W/m^2 (1 when not given: relative units)
-	amp   float64 // W/m^2 of flux per unit of the pattern (fraction of dlnVs)
 }
 
-// amplitude turns the pattern into the requested quantity.
-func amplitude(sp *config.Spec, pt *pattern) (*field, []string) {
-	var warns []string
-	q0 := 1.0
-	if sp.HasQMean {
-		q0 = sp.QMean
-	}
-	f := &field{q0: q0}
-	span := pt.pmax - pt.pmin
-	switch {
-	case sp.Physical:
-		// q = q0 - k dT / h with dT = dlnVs / (dlnVs/dT): a slow (hot)
-		// mantle lowers the temperature contrast across the boundary layer.
-		f.amp = -sp.Conductivity / (sp.Thickness * sp.DlnVsDT)
-	case span > 0:
-		// Linear form that keeps the mean and gives (q_max - q_min)/q_mean = q*
-		// on the diagnostic grid (references sheet, [derived]).
-		f.amp = q0 * sp.QStar / span
-	}
-	if span == 0 && sp.Quantity != "dvs" {
-		warns = append(warns, "uniform pattern: the pattern is uniform up to lmax (no lateral variation in the input): the boundary condition is homogeneous")
-	}
-	sqrt4pi := math.Sqrt(4 * math.Pi) // degree-0 orthonormal coefficient of a unit mean
-	scaled := func(scale, mean float64) *sh.Coeffs {
-		c := pt.dvs.Clone()
+// quantities maps the names of --quantity to the flux package's.
+var quantities = map[string]flux.Quantity{
+	"flux": flux.HeatFlux, "anomaly": flux.FluxAnomaly, "relative": flux.FluxRelative,
+	"superadiabatic": flux.SuperAdiabatic, "dtdr": flux.CoreGradient,
+}
+
+var quantityWords = map[string]string{
+	"flux": "heat flux through the core-mantle boundary", "anomaly": "heat flux anomaly q - q_mean",
+	"relative": "relative heat flux q / q_mean", "superadiabatic": "normalised super-adiabatic heat flux (q - q_ad) / (q_mean - q_ad)",
+	"dtdr": "radial temperature gradient on the core side, dT/dr = -q / k_core",
+	"dvs":  "shear-wave velocity anomaly dlnVs of the input layer, truncated and tapered",
+}
+
+// amplitude builds the boundary condition and the output quantity.
+func amplitude(sp *config.Spec, pt *pattern) (*field, error) {
+	f := &field{what: quantityWords[sp.Quantity]}
+	if sp.Quantity == "dvs" {
+		c := pt.flux.Coeffs()
+		c.C[0] = pt.mean * math.Sqrt(4*math.Pi)
 		for i := range c.C {
-			c.C[i] *= scale
-			c.S[i] *= scale
+			c.C[i] *= 100
+			c.S[i] *= 100
 		}
-		c.C[0] = mean * sqrt4pi
-		return c
+		f.out, f.units, f.sign = c, "percent", "positive = faster than average"
+		return f, nil
 	}
-	fluxUnits := "mW/m^2"
-	if !sp.HasQMean {
-		fluxUnits = "q_mean"
-	}
-	mw := 1e3
-	if !sp.HasQMean {
-		mw = 1
-	}
-	f.sign = "positive = heat out of the core"
-	switch sp.Quantity {
-	case "flux":
-		f.out, f.units, f.what = scaled(f.amp*mw, q0*mw), fluxUnits, "heat flux through the core-mantle boundary"
-	case "anomaly":
-		f.out, f.units, f.what = scaled(f.amp*mw, 0), fluxUnits, "heat flux anomaly (flux minus its mean)"
-	case "relative":
-		f.out, f.units, f.what = scaled(f.amp/q0, 0), "1", "relative heat flux anomaly (q - q_mean)/q_mean"
-	case "superadiabatic":
-		f.out, f.units, f.what = scaled(f.amp*mw, (q0-sp.QAd)*mw), fluxUnits, "super-adiabatic heat flux (q - q_ad)"
-		f.sign = "positive = more heat out of the core than the adiabat carries"
-	case "dtdr":
-		f.out, f.units, f.what = scaled(-f.amp/sp.CoreConductivity, -q0/sp.CoreConductivity), "K/m", "radial temperature gradient on the core side dT/dr = -q/k_core"
-		f.sign = "negative where heat flows out of the core (dT/dr = -q/k, r outward)"
-	case "dvs":
-		f.out = pt.dvs.Clone()
-		for i := range f.out.C {
-			f.out.C[i] *= 100
-			f.out.S[i] *= 100
-		}
-		f.units, f.what, f.sign = "percent", "shear-wave velocity anomaly dlnVs of the input layer", "positive = faster than average"
-	}
-	return f, warns
-}
-
-// diagnose fills the flux diagnostics of s from the pattern and amplitude.
-func diagnose(sp *config.Spec, pt *pattern, f *field, s *Summary) {
-	g := pt.grid
-	qmax := f.q0 + f.amp*pt.pmax
-	qmin := f.q0 + f.amp*pt.pmin
-	if f.amp < 0 {
-		qmax, qmin = qmin, qmax
-	}
-	imax, imin := pt.imax, pt.imin
-	if f.amp < 0 {
-		imax, imin = imin, imax
-	}
-	s.QStar = (qmax - qmin) / f.q0
-	s.RMSRatio = math.Abs(f.amp) * pt.rms / f.q0
-	lon, lat := lonlatOf(g, imax)
-	s.QMaxLonLat = [2]float64{lon, lat}
-	lon, lat = lonlatOf(g, imin)
-	s.QMinLonLat = [2]float64{lon, lat}
-	if sp.HasQMean {
-		s.QMean, s.QMax, s.QMin = ptr(f.q0*1e3), ptr(qmax*1e3), ptr(qmin*1e3)
-		s.HeatFlowTW = ptr(f.q0 * config.CMBArea / 1e12)
-	}
-	var neg, sub float64
-	for i, p := range pt.field {
-		q := f.q0 + f.amp*p
-		a := pt.area[i/g.NLon]
-		if q < 0 {
-			neg += a
-		}
-		if sp.HasQAd && q < sp.QAd {
-			sub += a
-		}
-	}
-	s.AreaNegative = neg
-	if sp.HasQAd {
-		s.QAd = ptr(sp.QAd * 1e3)
-		s.AreaSubadiabatic = ptr(sub)
-	}
+	ref := flux.Reference{QMean: sp.QMean, QAd: sp.QAd, KCore: sp.CoreConductivity}
+	var err error
 	if sp.Physical {
-		s.PhysicalDeltaTMaxK = ptr(math.Max(math.Abs(pt.pmax), math.Abs(pt.pmin)) / math.Abs(sp.DlnVsDT))
+		f.res, err = pt.flux.WithPhysical(flux.Physical{Conductivity: sp.Conductivity, Thickness: sp.Thickness, DlnVsDT: sp.DlnVsDT}, ref)
+	} else {
+		f.res, err = pt.flux.WithQStar(sp.QStar, ref)
+	}
+	if err != nil {
+		return nil, &config.Error{Key: "qstar", Err: err}
+	}
+	q := quantities[sp.Quantity]
+	c, err := f.res.Coeffs(q)
+	if err != nil {
+		return nil, &config.Error{Key: "quantity", Err: err}
+	}
+	info := q.Info()
+	for i := range c.C {
+		c.C[i] *= info.EdgeScale
+		c.S[i] *= info.EdgeScale
+	}
+	f.out, f.units, f.sign = c, info.EdgeUnits, info.Sign
+	return f, nil
+}
+
+// diagnose copies the flux package's diagnostics into the summary.
+func diagnose(f *field, s *Summary) {
+	if f.res == nil {
+		return
+	}
+	d := f.res.Diagnostics
+	s.QStar, s.QStarMeasuredOn, s.QStarContinuous = d.QStar, d.QStarMeasuredOn, d.QStarContinuous
+	s.QStarSuperadiabatic = d.QStarSuperadiabatic
+	s.QMean, s.QMax, s.QMin = ptr(d.QMean), ptr(d.QMax), ptr(d.QMin)
+	s.QMaxLonLat, s.QMinLonLat = lon360(d.QMaxLonLat), lon360(d.QMinLonLat)
+	s.HeatFlowTW = ptr(d.HeatFlowTW)
+	s.QAd, s.AdiabaticHeatFlowTW = d.QAd, d.AdiabaticHeatFlowTW
+	s.RMSRatio = d.RMSOverMean
+	s.AreaNegative, s.AreaSubadiabatic = d.AreaFractionNegative, d.AreaFractionSubadiabatic
+	s.Amplitude = d.Amplitude
+	s.SlowestLonLat, s.MinToSlowestDeg = lon360(d.SlowestLonLat), d.MinToSlowestDeg
+	s.Degree2PowerFraction = d.Degree2PowerFraction
+	if d.Mode == "physical" {
+		s.PhysicalDeltaTMaxK, s.PhysicalDeltaTMinK = ptr(d.TemperatureMax), ptr(d.TemperatureMin)
 	}
 }
 
-// warnings returns what the user must know about the boundary condition.
-// Each starts with a short class ("negative heat flux: ...") by which a
-// sweep groups them.
-func warnings(sp *config.Spec, src *source, s *Summary) []string {
+// lon360 returns a position with the longitude in [0, 360), as in the rest
+// of cmbflux's outputs, rounded to 1e-6 degree.
+func lon360(p [2]float64) [2]float64 {
+	lon := math.Mod(p[0], 360)
+	if lon < 0 {
+		lon += 360
+	}
+	return [2]float64{round6(lon), round6(p[1])}
+}
+
+// warnings returns what the user must know about the boundary condition:
+// the flux package's warnings and the command's own. Each starts with a
+// short class ("negative heat flux: ...") by which a sweep groups them.
+func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) []string {
 	var w []string
-	if s.AreaNegative > 0 {
-		w = append(w, fmt.Sprintf("negative heat flux: the flux points into the core over %.1f %% of the CMB (q_min = %s); q* = %.3g is too large for this pattern and mean, lower it unless your simulation is meant to have this", 100*s.AreaNegative, fmtMW(s.QMin), s.QStar))
-	}
-	if s.AreaSubadiabatic != nil && *s.AreaSubadiabatic > 0 {
-		w = append(w, fmt.Sprintf("sub-adiabatic heat flux: the flux is below the adiabatic flux over %.1f %% of the CMB; those regions are stably stratified at the top of the core", 100**s.AreaSubadiabatic))
-	}
-	if sp.LMax > src.safe.Lmax {
-		w = append(w, fmt.Sprintf("lmax above the input's resolution: lmax %d is above degree %d, the most the input resolves (%s)", sp.LMax, src.safe.Lmax, src.safe.Reason))
+	if f.res != nil {
+		w = append(w, f.res.Warnings...)
+	} else {
+		w = append(w, pt.flux.Warnings()...)
 	}
 	if sp.Norm != "orthonormal" || sp.CondonShortley || sp.Form != "real" {
 		w = append(w, fmt.Sprintf("non-default convention: coefficients are written %s, %s form; check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
 	}
 	if sp.Quantity == "dtdr" {
-		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k_core with k_core = %g W/m/K and is negative for heat leaving the core; check the sign and units your code expects", sp.CoreConductivity))
-	}
-	if !sp.HasQMean && sp.Quantity != "dvs" {
-		w = append(w, "no mean flux: fluxes in summary.json are in units of the mean flux")
+		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k_core with k_core = %g W/m/K, in K/km, negative where heat leaves the core; check the sign and units your code expects", sp.CoreConductivity))
 	}
 	for _, lw := range src.layer.Warnings {
 		w = append(w, "input: "+src.name+": "+lw)
@@ -438,7 +352,10 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	if err != nil {
 		return nil, err
 	}
-	f, warns := amplitude(sp, pt)
+	f, err := amplitude(sp, pt)
+	if err != nil {
+		return nil, err
+	}
 	conv, err := outputConvention(sp)
 	if err != nil {
 		return nil, err
@@ -446,18 +363,17 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	s := &Summary{
 		Quantity: sp.Quantity, Units: f.units, Sign: f.sign, LMax: sp.LMax, LMaxResolved: src.safe.Lmax,
 		Taper: sp.Taper, Rotate: sp.Rotate, Convention: conv.String(), Normalization: conv.Norm.String(),
-		CondonShortley: conv.CondonShortley, Form: sp.Form, DiagnosticGrid: sp.Grid,
+		CondonShortley: conv.CondonShortley, Form: sp.Form, OutputGrid: sp.Grid,
 		Input: src.name, InputSHA256: src.sha256, Layer: src.layer.Description, Mode: "ratio",
-		QStarDefinition: "(q_max - q_min) / q_mean of the total heat flux, extrema on the diagnostic grid",
+		QStarDefinition: "(q_max - q_min) / q_mean of the total heat flux, extrema of the continuous band-limited field",
 	}
 	if sp.Physical {
 		s.Mode = "physical"
 	} else if sp.HasQStar {
 		s.QStarRequested = ptr(sp.QStar)
 	}
-	diagnose(sp, pt, f, s)
-	s.Warnings = append(warnings(sp, src, s), warns...)
-	sort.Strings(s.Warnings)
+	diagnose(f, s)
+	s.Warnings = warnings(sp, src, pt, f, s)
 	files, err := writeOutputs(ctx, sp, src, pt, f, conv, s, st)
 	if err != nil {
 		return nil, err

@@ -18,37 +18,47 @@ type Summary struct {
 	Quantity        string   `json:"quantity"`
 	Units           string   `json:"units"`
 	Sign            string   `json:"sign"`
+	Mode            string   `json:"mode"`
 	QStar           float64  `json:"qstar"`
 	QStarRequested  *float64 `json:"qstar_requested"`
 	QStarDefinition string   `json:"qstar_definition"`
+	QStarMeasuredOn string   `json:"qstar_measured_on,omitempty"`
+	QStarContinuous float64  `json:"qstar_continuous"`
+	// QStarSuperadiabatic is (q_max - q_min) / (q_mean - q_ad).
+	QStarSuperadiabatic *float64 `json:"qstar_superadiabatic"`
 	// QMean and the extrema are of the total heat flux in mW/m^2.
-	QMean      *float64   `json:"q_mean"`
-	QMax       *float64   `json:"q_max"`
-	QMin       *float64   `json:"q_min"`
-	QMaxLonLat [2]float64 `json:"q_max_lonlat"`
-	QMinLonLat [2]float64 `json:"q_min_lonlat"`
-	QAd        *float64   `json:"q_ad"`
-	HeatFlowTW *float64   `json:"heat_flow_tw"`
+	QMean               *float64   `json:"q_mean"`
+	QMax                *float64   `json:"q_max"`
+	QMin                *float64   `json:"q_min"`
+	QMaxLonLat          [2]float64 `json:"q_max_lonlat"`
+	QMinLonLat          [2]float64 `json:"q_min_lonlat"`
+	QAd                 *float64   `json:"q_ad"`
+	HeatFlowTW          *float64   `json:"heat_flow_tw"`
+	AdiabaticHeatFlowTW *float64   `json:"adiabatic_heat_flow_tw"`
 	// RMSRatio is the rms of the flux anomaly over the mean flux.
-	RMSRatio           float64  `json:"rms_ratio"`
-	AreaNegative       float64  `json:"area_fraction_negative"`
-	AreaSubadiabatic   *float64 `json:"area_fraction_subadiabatic"`
-	LMax               int      `json:"lmax"`
-	LMaxResolved       int      `json:"lmax_resolved_by_input"`
-	Taper              string   `json:"taper"`
-	Rotate             float64  `json:"rotate_deg"`
-	Convention         string   `json:"convention"`
-	Normalization      string   `json:"normalization"`
-	CondonShortley     bool     `json:"condon_shortley"`
-	Form               string   `json:"form"`
-	DiagnosticGrid     string   `json:"diagnostic_grid"`
-	Input              string   `json:"input"`
-	InputSHA256        string   `json:"input_sha256"`
-	Layer              string   `json:"layer"`
-	Mode               string   `json:"mode"`
-	PhysicalDeltaTMaxK *float64 `json:"physical_delta_t_max_k,omitempty"`
-	Warnings           []string `json:"warnings"`
-	Files              []string `json:"files"`
+	RMSRatio             float64    `json:"rms_ratio"`
+	AreaNegative         float64    `json:"area_fraction_negative"`
+	AreaSubadiabatic     *float64   `json:"area_fraction_subadiabatic"`
+	Amplitude            float64    `json:"amplitude"`
+	SlowestLonLat        [2]float64 `json:"slowest_dvs_lonlat"`
+	MinToSlowestDeg      float64    `json:"q_min_to_slowest_dvs_deg"`
+	Degree2PowerFraction float64    `json:"degree2_power_fraction"`
+	LMax                 int        `json:"lmax"`
+	LMaxResolved         int        `json:"lmax_resolved_by_input"`
+	Taper                string     `json:"taper"`
+	Rotate               float64    `json:"rotate_deg"`
+	Convention           string     `json:"convention"`
+	Normalization        string     `json:"normalization"`
+	CondonShortley       bool       `json:"condon_shortley"`
+	Form                 string     `json:"form"`
+	OutputGrid           string     `json:"output_grid"`
+	Input                string     `json:"input"`
+	InputSHA256          string     `json:"input_sha256"`
+	Layer                string     `json:"layer"`
+	PhysicalDeltaTMaxK   *float64   `json:"physical_dt_max_k,omitempty"`
+	PhysicalDeltaTMinK   *float64   `json:"physical_dt_min_k,omitempty"`
+	Warnings             []string   `json:"warnings"`
+	Files                []string   `json:"files"`
 }
 
 // summaryColumns are the diagnostic columns of a sweep's summary.csv.

@@ -65,7 +65,7 @@ func TestResolveRefuses(t *testing.T) {
 	for _, tc := range []struct{ yaml, want string }{
 		{"qstar: 1\nqmean: 80\n", "no input"},
 		{"demo: true\nqmean: 80\n", "no amplitude"},
-		{"demo: true\nqstar: 1\n", "needs --qmean"},
+		{"demo: true\nqstar: 1\n", "no mean flux"},
 		{"demo: true\nqstar: -1\nqmean: 80\n", "negative"},
 		{"demo: true\nphysical: true\nqmean: 80\ndlnvs-dt: 2e-5\nconductivity: 8\nthickness: 200\n", "must be negative"},
 		{"demo: true\nqstar: 1\nqmean: 80\nformats: pdf\n", `"pdf" is not one of`},

@@ -60,7 +60,7 @@ var BuildKeys = []Key{
 	{Name: "conductivity", Kind: Float, Arg: "K", Group: "Amplitude", Usage: "physical mode: thermal conductivity of the lowermost mantle (W/m/K, e.g. 8.4)"},
 	{Name: "thickness", Kind: Float, Arg: "KM", Group: "Amplitude", Usage: "physical mode: thermal boundary layer thickness (km)"},
 	{Name: "core-conductivity", Kind: Float, Arg: "K", Group: "Output", Usage: "thermal conductivity of the outermost core (W/m/K), for --quantity dtdr"},
-	{Name: "quantity", Kind: String, Arg: "Q", Group: "Output", Usage: "flux, anomaly, relative, superadiabatic, dtdr or dvs (default flux)"},
+	{Name: "quantity", Kind: String, Arg: "Q", Group: "Output", Usage: "flux (q, mW/m^2), anomaly (q - q_mean), relative (q/q_mean), superadiabatic ((q - q_ad)/(q_mean - q_ad)), dtdr (-q/k_core, K/km) or dvs (percent) (default flux)"},
 	{Name: "norm", Kind: String, Arg: "N", Group: "Output", Usage: "orthonormal, fully-normalized, schmidt or unnormalized (default orthonormal)"},
 	{Name: "condon-shortley", Kind: Bool, Group: "Output", Usage: "include the Condon-Shortley phase (-1)^m (default off)"},
 	{Name: "form", Kind: String, Arg: "F", Group: "Output", Usage: "real (cos/sin) or complex (default real)"},

@@ -226,22 +226,18 @@ func Resolve(s Set) (*Spec, error) {
 	if !sp.Physical && !sp.HasQStar && sp.Quantity != "dvs" {
 		return nil, &Error{Key: "qstar", Err: errors.New("no amplitude: give --qstar X (with --qmean or --heatflow) or --physical with its constants")}
 	}
+	if !sp.HasQMean && sp.Quantity != "dvs" {
+		return nil, &Error{Key: "qmean", Err: errors.New("no mean flux: give --qmean MW_M2 or --heatflow TW")}
+	}
 	switch sp.Quantity {
-	case "flux", "anomaly":
-		if !sp.HasQMean {
-			return nil, &Error{Key: "qmean", Err: fmt.Errorf("--quantity %s needs --qmean MW_M2 or --heatflow TW (or choose --quantity relative)", sp.Quantity)}
-		}
 	case "superadiabatic":
-		if !sp.HasQMean || !sp.HasQAd {
-			return nil, &Error{Key: "qad", Err: errors.New("--quantity superadiabatic needs the mean flux (--qmean or --heatflow) and the adiabatic flux (--qad or --adiabatic-heatflow)")}
+		if !sp.HasQAd {
+			return nil, &Error{Key: "qad", Err: errors.New("--quantity superadiabatic needs the adiabatic flux: give --qad MW_M2 or --adiabatic-heatflow TW")}
 		}
 	case "dtdr":
-		if !sp.HasQMean || sp.CoreConductivity == 0 {
-			return nil, &Error{Key: "core-conductivity", Err: errors.New("--quantity dtdr needs the mean flux (--qmean or --heatflow) and --core-conductivity K")}
+		if sp.CoreConductivity == 0 {
+			return nil, &Error{Key: "core-conductivity", Err: errors.New("--quantity dtdr needs the conductivity of the outermost core: give --core-conductivity K")}
 		}
-	}
-	if sp.Physical && !sp.HasQMean && sp.Quantity != "dvs" {
-		return nil, &Error{Key: "qmean", Err: errors.New("physical mode needs the mean flux: give --qmean or --heatflow")}
 	}
 	if v, ok := s["norm"]; ok {
 		sp.Norm = v.Raw

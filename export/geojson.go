@@ -104,7 +104,18 @@ type piece struct {
 // GeoJSON draws them (RFC 7946 section 3.1.1).
 func cut(u []pt, wind int) []piece {
 	n := len(u)
-	strip := func(x float64) int { return int(math.Floor((x + 180) / 360)) }
+	// strip k holds -180 + 360 k <= x < 180 + 360 k; the bounds are
+	// compared exactly, since x + 180 may round up to the next strip.
+	strip := func(x float64) int {
+		k := int(math.Floor((x + 180) / 360))
+		for x < -180+360*float64(k) {
+			k--
+		}
+		for x >= 180+360*float64(k) {
+			k++
+		}
+		return k
+	}
 	type raw struct {
 		p []pt
 		k int

@@ -410,3 +410,19 @@ func TestGaussLegendreTable(t *testing.T) {
 		}
 	}
 }
+
+// A clockwise ring across the antimeridian is a hole in the whole sphere: the
+// map rectangle with a notch on each side, plus a hole elsewhere.
+func TestOutlineWorldWithHoleAcrossAntimeridian(t *testing.T) {
+	const r = 3480.0
+	rings := [][][2]float64{smallCircle(180, 0, 10, 720, false), smallCircle(0, 0, 10, 720, false)}
+	c, _ := writeOne(t, rings, nil)
+	polys := checkRFC7946(t, c.Features[0].Geometry)
+	if len(polys) != 1 || len(polys[0]) != 2 {
+		t.Fatalf("want one polygon (rectangle with notches) with one hole, got %d polygons", len(polys))
+	}
+	want := 4*math.Pi*r*r - 2*capArea(r, 10)
+	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), want); e > 1e-5 {
+		t.Errorf("area %v, want %v", c.Features[0].Props[PropAreaKm2], want)
+	}
+}

@@ -65,7 +65,11 @@ type Diagnostics struct {
 	TemperatureMin float64 `json:"dt_min_k,omitempty"`
 }
 
-// fractionBelow returns the fraction of the sphere where g < level.
+// fractionBelow returns the fraction of the sphere where g < level: the
+// contoured area, plus the regions around refined minima (minus the islands
+// around refined maxima) too small to cut an edge of their grid cell, each
+// by its quadratic model, an ellipse of area 2 pi |level - g_ext| /
+// sqrt(det H) (H the Hessian on the unit sphere), at most the cell's area.
 func (p *Pattern) fractionBelow(level float64) float64 {
 	switch {
 	case level <= p.min.value:
@@ -73,7 +77,30 @@ func (p *Pattern) fractionBelow(level float64) float64 {
 	case level >= p.max.value:
 		return 1
 	}
-	return p.surf.FractionBelow(level)
+	a := p.surf.AreaBelow(level)
+	blob := func(e extremum, wantCorners int) float64 {
+		ll := e.at.lonLat()
+		if e.det <= 0 {
+			return 0
+		}
+		if n, cut := p.surf.CellBelow(ll[0], ll[1], level); cut || n != wantCorners {
+			return 0
+		}
+		return math.Min(2*math.Pi*math.Abs(level-e.value)/math.Sqrt(e.det), p.surf.CellArea(ll[0], ll[1]))
+	}
+	for _, e := range p.mins {
+		if e.value >= level {
+			break
+		}
+		a += blob(e, 0)
+	}
+	for _, e := range p.maxs {
+		if e.value <= level {
+			break
+		}
+		a -= blob(e, 4)
+	}
+	return math.Max(0, math.Min(1, a/(4*math.Pi)))
 }
 
 // level returns the level of g where q = target, for q = qm (1 + a g), and

@@ -568,3 +568,37 @@ func TestZonalBands(t *testing.T) {
 		}
 	}
 }
+
+func TestRegionsInsideOneCell(t *testing.T) {
+	// A degree-1 pattern g = N d.x has its minimum at -d and is negative,
+	// for q* = 2/cos(beta), inside the cap of half-angle beta around it:
+	// area fraction (1 - cos beta)/2 (see TestZonalY10ClosedForms). With
+	// the minimum at the centre of a search-grid cell and beta = 1.5 deg the
+	// cap cuts no grid edge; it must still be counted. Likewise the island
+	// above q_ad = q_mean (1 + (q*/2) cos beta) around the maximum is
+	// missing from the sub-adiabatic region: fraction 1 - (1 - cos beta)/2.
+	const beta = 1.5 / rad2deg
+	nr := 48 // rings of the search grid for degree 1 (PatternOptions.Oversample)
+	gl := sh.NewGaussLegendre(nr, 2*nr)
+	k := nr / 3
+	lat := 90 - (gl.Colat[k]+gl.Colat[k+1])/2*rad2deg
+	lon := (7 + 0.5) * 360 / float64(2*nr)
+	// d points to the maximum, the antipode of the cell centre (lon, lat).
+	x := point{(90 - lat) / rad2deg, lon / rad2deg}.vec()
+	p, err := Ideal(nil, Term{L: 1, M: 0, Weight: -x[2]}, Term{L: 1, M: 1, Weight: -x[0]}, Term{L: 1, M: 1, Sin: true, Weight: -x[1]})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.nr != nr {
+		t.Fatalf("search grid has %d rings, the test assumes %d", p.nr, nr)
+	}
+	qs := 2 / math.Cos(beta)
+	r, _ := p.WithQStar(qs, Reference{QMean: 0.05})
+	if want := (1 - math.Cos(beta)) / 2; math.Abs(r.Diagnostics.AreaFractionNegative-want) > 1e-7 {
+		t.Errorf("negative fraction %.9f, want %.9f", r.Diagnostics.AreaFractionNegative, want)
+	}
+	r, _ = p.WithQStar(1, Reference{QMean: 0.05, QAd: 0.05 * (1 + 0.5*math.Cos(beta))})
+	if want := 1 - (1-math.Cos(beta))/2; math.Abs(*r.Diagnostics.AreaFractionSubadiabatic-want) > 1e-7 {
+		t.Errorf("sub-adiabatic fraction %.9f, want %.9f", *r.Diagnostics.AreaFractionSubadiabatic, want)
+	}
+}

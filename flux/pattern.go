@@ -48,7 +48,9 @@ type Pattern struct {
 	nr      int // Gauss-Legendre rings of the search grid
 	max     extremum
 	min     extremum
-	slow    point // minimum of the input dlnVs
+	maxs    []extremum // refined local maxima, highest first
+	mins    []extremum // refined local minima, lowest first
+	slow    point      // minimum of the input dlnVs
 	surf    *contour.Surface
 	rot     *sh.Rotation // nil, or the rotation applied to the base surface
 	rms     float64      // root mean square of g over the sphere
@@ -150,7 +152,7 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 	}
 	p.nr = max(os*(g.LMax+1), 48)
 	grid := newDenseGrid(g, p.nr, true)
-	p.max, p.min = extrema(g, grid)
+	p.max, p.min, p.maxs, p.mins = extrema(g, grid)
 	surf, err := grid.surface(g)
 	if err != nil {
 		return nil, fmt.Errorf("flux: internal error contouring the pattern: %v", err)
@@ -161,7 +163,7 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 		inp := in.Clone()
 		inp.C[0] = 0
 		ig := newDenseGrid(inp, max(os*(inp.LMax+1), 48), false)
-		_, mn := extrema(inp, ig)
+		_, mn, _, _ := extrema(inp, ig)
 		p.slow = mn.at
 	}
 	return p, nil

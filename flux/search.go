@@ -245,7 +245,7 @@ func parabolaGain(a, b, c float64) float64 {
 // in the gradient; the value at the optimum is then exact to far better
 // than 1e-8 relative). Steps are limited to maxStep radians and halved until
 // the value improves; non-concave models fall back to gradient ascent.
-func refine(ev *sh.Evaluator, start point, s, maxStep float64) (point, float64) {
+func refine(ev *sh.Evaluator, start point, s, maxStep float64) (point, float64, float64) {
 	const delta = 1e-4
 	x := start.vec()
 	f := func(y [3]float64) float64 {
@@ -258,6 +258,7 @@ func refine(ev *sh.Evaluator, start point, s, maxStep float64) (point, float64) 
 		return [3]float64{y[0] / r, y[1] / r, y[2] / r}
 	}
 	f0 := f(x)
+	det := 0.0
 	for range 40 {
 		p := fromVec(x)
 		st, ct := math.Sincos(p.colat)
@@ -273,7 +274,7 @@ func refine(ev *sh.Evaluator, start point, s, maxStep float64) (point, float64) 
 		hvv := (fv1 - 2*f0 + fv0) / (delta * delta)
 		huv := (fpp - fu1 - fv1 + 2*f0 - fu0 - fv0 + fmm) / (2 * delta * delta)
 		// Newton step for a maximum: solve H d = -g with H negative definite.
-		det := huu*hvv - huv*huv
+		det = huu*hvv - huv*huv
 		var du, dv float64
 		if huu < 0 && det > 0 {
 			du = -(hvv*gu - huv*gv) / det
@@ -302,32 +303,44 @@ func refine(ev *sh.Evaluator, start point, s, maxStep float64) (point, float64) 
 			break
 		}
 	}
-	return fromVec(x), s * f0
+	return fromVec(x), s * f0, det
 }
 
-// extremum is a refined extremum of a field: its position and value.
+// extremum is a refined extremum of a field: its position, value and the
+// determinant of its Hessian on the unit sphere (per radian^2; positive at a
+// strict extremum).
 type extremum struct {
 	at    point
 	value float64
+	det   float64
 }
 
 // extrema returns the global maximum and minimum of the canonical expansion
-// c: a dense grid search (nr Gauss-Legendre rings, 2 nr longitudes) and
-// Newton refinement from the best few grid candidates of each kind.
-func extrema(c *sh.Coeffs, g *denseGrid) (max, min extremum) {
+// c and all refined local extrema of each kind (distinct, most extreme
+// first): a dense grid search (the rings of g) and Newton refinement from
+// the best grid candidates of each kind.
+func extrema(c *sh.Coeffs, g *denseGrid) (max, min extremum, maxs, mins []extremum) {
 	ev := sh.NewEvaluator(c)
 	maxStep := math.Pi / float64(len(g.colat)-1)
 	const starts = 12
-	best := func(s float64) extremum {
-		e := extremum{value: math.Inf(-1)}
+	all := func(s float64) []extremum {
+		var es []extremum
 		for _, p := range g.candidates(s, starts) {
-			q, v := refine(ev, p, s, maxStep)
-			if s*v > e.value {
-				e = extremum{q, s * v}
+			q, v, det := refine(ev, p, s, maxStep)
+			dup := false
+			for k := range es {
+				if angle(es[k].at, q) < 1e-6 {
+					dup = true
+					break
+				}
+			}
+			if !dup {
+				es = append(es, extremum{q, v, det})
 			}
 		}
-		e.value *= s
-		return e
+		sort.Slice(es, func(a, b int) bool { return s*es[a].value > s*es[b].value })
+		return es
 	}
-	return best(1), best(-1)
+	maxs, mins = all(1), all(-1)
+	return maxs[0], mins[0], maxs, mins
 }

@@ -803,3 +803,50 @@ func Below(f Field, level float64) ([][][2]float64, error) {
 	}
 	return s.Rings(level), nil
 }
+
+// cellAt returns the band and column of the grid cell containing (lon, lat)
+// in degrees.
+func (s *Surface) cellAt(lon, lat float64) (i, j int) {
+	x := math.Mod(lon-s.lon0, 360)
+	if x < 0 {
+		x += 360
+	}
+	j = min(int(x/s.dlon), s.n-1)
+	lo, hi := 0, len(s.lat)-2 // rows north to south; find lat[i] >= lat >= lat[i+1]
+	for lo < hi {
+		m := (lo + hi) / 2
+		if s.lat[m+1] > lat {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo, j
+}
+
+// CellBelow reports, for the grid cell that contains (lon, lat) in degrees,
+// how many of its four corners are below level and whether the contour at
+// level crosses one of its edges (as screened by the edge interpolants). A
+// region smaller than a cell that cuts none of its edges (a cell with no
+// corner below and no cut around a minimum) is invisible to AreaBelow and
+// Rings; callers that know such a region's extremum (position, value,
+// curvature) can add it themselves.
+func (s *Surface) CellBelow(lon, lat, level float64) (corners int, cut bool) {
+	i, j := s.cellAt(lon, lat)
+	j1 := (j + 1) % s.n
+	for _, k := range [4]int{i*s.n + j, i*s.n + j1, (i+1)*s.n + j, (i+1)*s.n + j1} {
+		if s.v[k] < level {
+			corners++
+		}
+	}
+	cut = s.parallelCut(i+1, j, level).n > 0 || s.parallelCut(i, j, level).n > 0 ||
+		s.meridianCut(i, j, level).n > 0 || s.meridianCut(i, j1, level).n > 0
+	return corners, cut
+}
+
+// CellArea returns the area in steradians of the grid cell that contains
+// (lon, lat) in degrees.
+func (s *Surface) CellArea(lon, lat float64) float64 {
+	i, _ := s.cellAt(lon, lat)
+	return (s.sinLat[i] - s.sinLat[i+1]) * s.dlon * deg
+}

@@ -10,8 +10,8 @@ import (
 // KMeansResult is a partition of weighted points into K clusters.
 type KMeansResult struct {
 	// Labels[i] is the cluster of point i. Clusters are numbered by the
-	// mean of their first coordinate, ascending: for dlnVs, cluster 0 is the
-	// slowest.
+	// mean of their centre's coordinates, ascending: for dlnVs (one value or
+	// a depth profile per point), cluster 0 is the slowest.
 	Labels []int
 	// Centers[k] is the weighted mean of the points in cluster k.
 	Centers [][]float64
@@ -139,12 +139,14 @@ func KMeans(x [][]float64, weights []float64, k, restarts int, seed uint64) (*KM
 			best = &KMeansResult{Labels: labels, Centers: centers, Inertia: inertia, Iterations: it}
 		}
 	}
-	// Number clusters by the first coordinate of their centre.
+	// Number clusters by the mean coordinate of their centre.
 	order := make([]int, k)
+	key := make([]float64, k)
 	for i := range order {
 		order[i] = i
+		key[i] = mean(best.Centers[i])
 	}
-	sort.SliceStable(order, func(a, b int) bool { return best.Centers[order[a]][0] < best.Centers[order[b]][0] })
+	sort.SliceStable(order, func(a, b int) bool { return key[order[a]] < key[order[b]] })
 	rank := make([]int, k)
 	centers := make([][]float64, k)
 	for newIdx, old := range order {

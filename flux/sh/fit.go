@@ -258,10 +258,24 @@ func FitGrid(lmax int, g *Grid, field []float64, opt *FitOptions) (*Coeffs, *Fit
 	if err != nil {
 		return nil, rep, err
 	}
+	fitWarnings(rep, opt)
 	// Residuals on the grid.
 	fit := NewTransform(lmax, g).Synthesis(nil, c)
 	residuals(rep, field, fit, w)
 	return c, rep, nil
+}
+
+// noiseCond is the condition number above which a fit warns that it
+// amplifies noise in the data.
+const noiseCond = 1e3
+
+func fitWarnings(rep *FitReport, opt *FitOptions) {
+	if rep.Coverage < 0.999 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("the used points cover %.1f%% of the sphere; in the gaps the fitted field is extrapolated", 100*rep.Coverage))
+	}
+	if rep.Condition > noiseCond {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("condition number %.3g: noise in the data may be amplified up to that factor; lower lmax or add damping", rep.Condition))
+	}
 }
 
 func residuals(rep *FitReport, f, fit, w []float64) {
@@ -606,6 +620,7 @@ func FitPoints(lmax int, colat, lon, values []float64, opt *FitOptions) (*Coeffs
 		})
 		return nil, rep, fe
 	}
+	fitWarnings(rep, opt)
 	fit := NewPoints(lmax, colat, lon).Synthesis(nil, c)
 	residuals(rep, values, fit, w)
 	return c, rep, nil

@@ -29,30 +29,47 @@ package sh
 // is rescaled once per plan: with Pbar_lm = c_lm Q_lm, c_mm = c_{m+1,m} = 1
 // and c_lm = -b_lm c_{l-2,m}, it becomes Q_lm = alpha_lm x Q_{l-1,m} +
 // Q_{l-2,m} with alpha_lm = a_lm c_{l-1,m}/c_lm, two multiplications and an
-// addition per degree and ring pair. The coefficients are multiplied by c_lm
+// addition per degree and ring pair (|c_lm| lies between 0.18 and 1.2 for
+// all l <= 2700). The coefficients are multiplied by c_lm
 // before synthesis and the sums by c_lm after analysis. The inner loop runs
-// over ring pairs (independent, so the processor overlaps them) for four
-// degrees at a time.
+// over the ring pairs (independent, so the processor overlaps them) for four
+// degrees at a time, with the per-pair recursion state and sums in short
+// slices that stay in the L1 cache.
 //
 // Underflow. The sectoral start Pbar_mm = N_m sin^m(theta) underflows double
 // precision near the poles at high m (sin theta = 1e-3 and m = 500 give
-// 1e-1500). Start values are kept as a mantissa and a power of 2^600, and
-// the recursion runs in that scaled form, ring by ring, until the value
-// exceeds 2^-200 in absolute terms (Holmes & Featherstone 2002 use the same
-// idea with a fixed 1e-280 scale); only then does the ring join the fast
-// loop. Terms below 2^-200 (6e-61) are dropped: relative to the O(1)
-// terms of the same sum they are far below rounding. This keeps the
-// recursion stable to degree 2700 and beyond.
+// 1e-1500). When the plan is made, start values are kept as a mantissa and
+// a power of 2^600 and the recursion runs in that scaled form, pair by pair
+// and order by order, up to the first degree where the function exceeds
+// 2^-200 (the same idea as the scaling of Holmes & Featherstone 2002, who
+// use a fixed factor of about 1e-280, from memory). The plan stores, per
+// order and pair, the degree (a multiple of four above m) at which the pair
+// joins the fast loop and the unscaled recursion state there; terms below
+// about 2^-200 (6e-61) are dropped, far below the rounding of the O(1)
+// terms of the same sums. This keeps the transforms stable to degree 2700
+// (tested) and beyond, and skips 14 % of the (l, m, pair) work at lmax 511.
 //
-// Memory. A plan holds alpha_lm and c_lm (2 (L+1)(L+2)/2 floats) and the
-// ring geometry; a call uses one ring spectrum of nlat x (nlon/2+1) complex
-// values plus O(nlat + L) scratch, taken from a pool so that repeated calls
-// do not allocate. No table grows like L^3 or like nlat x L^2.
+// Memory. A plan holds alpha_lm and c_lm (2 (L+1)(L+2)/2 floats), the
+// entry table (at most (L+1) nlat/2 entries of 24 bytes) and the ring
+// geometry; a call uses one array of ring spectra, nlat x (nlon/2+1)
+// complex values, plus O(nlat + L) scratch per goroutine, taken from a free
+// list in the plan so that repeated calls do not allocate. No table grows
+// like L^3 or like nlat x L^2: at lmax 511 a plan and one analysis allocate
+// about 21 MB in total.
 //
 // Accuracy. Round trip synthesis then analysis on a Gauss-Legendre grid
-// returns the coefficients to about 1e-14 relative at lmax 63 and a few
-// 1e-14 at lmax 511 (see the tests); the error grows slowly with degree,
-// roughly like sqrt(L) times the rounding of the recursion.
+// returns the coefficients to 6e-14 (max |error| / max |coefficient|) at
+// lmax 63, 2e-13 at 255 and 8e-13 at 511 (libsharp 1.0: 1.4e-14, 1.3e-13,
+// 3.2e-13); the
+// error is largest at low order and high degree, where the three-term
+// recursion near the poles amplifies rounding like l^2. Synthesis agrees
+// with the pointwise evaluator (Coeffs.Evaluate) to 1e-12 at lmax 700 and
+// 2e-11 at lmax 2700.
+//
+// Speed. One scalar core does about 4 multiplications per (l, m, ring
+// pair) at roughly 3 cycles; the longitude FFTs (fft.go) take about a tenth
+// of the time at lmax 511. Measured ratios to libsharp are in the
+// benchmarks' documentation (transform_bench_test.go).
 
 import (
 	"fmt"

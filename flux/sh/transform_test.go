@@ -285,3 +285,20 @@ func TestHighDegree(t *testing.T) {
 	}
 	t.Logf("lmax 2700: max difference %.3g relative to max |f| = %.3g", worst/scale, scale)
 }
+
+// TestSynthesisDegreeMismatch: coefficients of lower degree than the plan
+// count as zero above their degree, higher ones are truncated (definition
+// of the truncated expansion).
+func TestSynthesisDegreeMismatch(t *testing.T) {
+	g := NewGaussLegendre(30, 60)
+	c := trRandCoeffs(10, 14)
+	small := NewTransform(10, g).Synthesis(nil, c)
+	big := NewTransform(25, g).Synthesis(nil, c)
+	trunc := NewTransform(6, g).Synthesis(nil, c)
+	want6 := NewTransform(10, g).Synthesis(nil, c.Truncate(6))
+	for i := range small {
+		if math.Abs(small[i]-big[i]) > 1e-13 || math.Abs(trunc[i]-want6[i]) > 1e-13 {
+			t.Fatalf("point %d: lmax-10 plan %v, lmax-25 plan %v; truncated %v, want %v", i, small[i], big[i], trunc[i], want6[i])
+		}
+	}
+}

@@ -186,3 +186,36 @@ func TestUnitWarnings(t *testing.T) {
 		t.Error("a negative taper weight must be refused")
 	}
 }
+
+func TestConcurrentBuilds(t *testing.T) {
+	// A Pattern is shared by the workers of a sweep: builds and outlines
+	// from several goroutines must agree with the serial ones (run with
+	// -race to check for data races).
+	p, err := NewPattern(randomDlnVs(9, 12), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ref := Reference{QMean: 0.06, QAd: 0.045}
+	want := make([]float64, 16)
+	for k := range want {
+		r, _ := p.WithQStar(1+0.3*float64(k), ref)
+		want[k] = r.Diagnostics.AreaFractionNegative + *r.Diagnostics.AreaFractionSubadiabatic
+	}
+	errs := make(chan string, len(want))
+	for k := range want {
+		go func() {
+			r, _ := p.WithQStar(1+0.3*float64(k), ref)
+			_ = r.Outlines()
+			if got := r.Diagnostics.AreaFractionNegative + *r.Diagnostics.AreaFractionSubadiabatic; got != want[k] {
+				errs <- "concurrent build differs"
+				return
+			}
+			errs <- ""
+		}()
+	}
+	for range want {
+		if e := <-errs; e != "" {
+			t.Error(e)
+		}
+	}
+}

@@ -88,7 +88,7 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 	if err := validateSpec(sp); err != nil {
 		return err
 	}
-	sum, err := buildFolder(context.Background(), newCache(), sp, sp.Out, o.force, set)
+	sum, err := buildFolder(context.Background(), newCache(), sp, sp.Out, o.force, false, set)
 	if err != nil {
 		return err
 	}
@@ -103,11 +103,15 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 
 // buildFolder runs the pipeline into a staged folder and renames it to out
 // when every file is written.
-func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, force bool, set config.Set) (*Summary, error) {
+//
+// With noSync the files are not synced to disk one by one (see
+// outdir.Stage.NoSync); sweeps use it and verify manifests on resume.
+func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, force, noSync bool, set config.Set) (*Summary, error) {
 	st, err := outdir.New(out, force)
 	if err != nil {
 		return nil, err
 	}
+	st.NoSync = noSync
 	defer st.Abort()
 	sum, err := produce(ctx, c, sp, set, st)
 	if err != nil {

@@ -67,7 +67,7 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 		return err
 	}
 	c := newCache()
-	sum, err := buildFolder(context.Background(), c, sp, st.Path("bc"), false, set)
+	sum, err := buildFolder(context.Background(), c, sp, st.Path("bc"), false, false, set)
 	if err != nil {
 		return err
 	}

@@ -235,7 +235,7 @@ func TestSweepSharesTransforms(t *testing.T) {
 	var specs []string
 	for _, q := range []string{"0.5", "1", "2"} {
 		st := mustSpec(t, "demo", "true", "qstar", q, "qmean", "80", "lmax", "8")
-		if _, err := buildFolder(t.Context(), c, st, filepath.Join(dir, q), false, nil); err != nil {
+		if _, err := buildFolder(t.Context(), c, st, filepath.Join(dir, q), false, true, nil); err != nil {
 			t.Fatal(err)
 		}
 		specs = append(specs, q)

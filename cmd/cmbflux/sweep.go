@@ -177,7 +177,7 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 					results[i].err = err
 					continue
 				}
-				_, err := buildFolder(ctx, c, specs[i], dir, false, pts[i].Set)
+				_, err := buildFolder(ctx, c, specs[i], dir, false, true, pts[i].Set)
 				results[i].err = err
 				if err == nil {
 					bar.Done(false)

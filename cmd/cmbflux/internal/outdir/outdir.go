@@ -24,7 +24,14 @@ var ErrNotEmpty = errors.New("output folder is not empty")
 type Stage struct {
 	Final string // the folder that Commit creates
 	Tmp   string // the hidden folder holding the files meanwhile
-	done  bool
+	// NoSync skips fsync: files are written straight into the hidden
+	// folder, which Commit still renames into place only when complete, so
+	// an interrupted process never leaves a folder that looks complete. A
+	// power failure can leave a renamed folder whose files were not yet on
+	// disk; callers that set NoSync must check folders against their
+	// manifest before trusting them (the sweep's resume does).
+	NoSync bool
+	done   bool
 }
 
 // tmpTag returns ".tmp-HOST-PID-RANDOM", which lets Clean recognise the
@@ -78,6 +85,9 @@ func (s *Stage) Path(name string) string { return filepath.Join(s.Tmp, name) }
 
 // WriteFile writes a complete file into the stage.
 func (s *Stage) WriteFile(name string, data []byte) error {
+	if s.NoSync {
+		return os.WriteFile(s.Path(name), data, 0o644)
+	}
 	return WriteFile(s.Path(name), data)
 }
 
@@ -92,8 +102,10 @@ func (s *Stage) Commit() error {
 	if s.done {
 		panic("outdir: Commit after Commit or Abort")
 	}
-	if err := syncDir(s.Tmp); err != nil {
-		return err
+	if !s.NoSync {
+		if err := syncDir(s.Tmp); err != nil {
+			return err
+		}
 	}
 	var old string
 	if _, err := os.Stat(s.Final); err == nil {
@@ -111,6 +123,9 @@ func (s *Stage) Commit() error {
 	s.done = true
 	if old != "" {
 		_ = os.RemoveAll(old)
+	}
+	if s.NoSync {
+		return nil
 	}
 	return syncDir(filepath.Dir(s.Final))
 }

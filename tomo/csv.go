@@ -121,22 +121,22 @@ func ReadCSV(name string, data []byte, opts ReadOptions) (*Grid, error) {
 			return nil, inputErr(name, line, "%d fields, but the header (line %d) has %d columns", len(rec), headLine, len(titles))
 		}
 		lines = append(lines, int32(line))
-		lon, err := coordField(name, line, []byte(strings.TrimSpace(rec[plan.lon])), plan.lon, titles[plan.lon])
+		lon, err := coordField(name, line, strings.TrimSpace(rec[plan.lon]), plan.lon, titles[plan.lon])
 		if err != nil {
 			return nil, err
 		}
-		lat, err := coordField(name, line, []byte(strings.TrimSpace(rec[plan.lat])), plan.lat, titles[plan.lat])
+		lat, err := coordField(name, line, strings.TrimSpace(rec[plan.lat]), plan.lat, titles[plan.lat])
 		if err != nil {
 			return nil, err
 		}
 		dep := 0.0
 		if plan.vert >= 0 {
-			if dep, err = coordField(name, line, []byte(strings.TrimSpace(rec[plan.vert])), plan.vert, vertName); err != nil {
+			if dep, err = coordField(name, line, strings.TrimSpace(rec[plan.vert]), plan.vert, vertName); err != nil {
 				return nil, err
 			}
 			dep /= plan.vertPerKm
 		}
-		v, err := valueField(name, line, []byte(strings.TrimSpace(rec[plan.value])), plan.value)
+		v, err := valueField(name, line, strings.TrimSpace(rec[plan.value]), plan.value)
 		if err != nil {
 			return nil, err
 		}

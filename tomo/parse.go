@@ -19,7 +19,7 @@ var pow10 = [...]float64{
 // multiplication or division gives the correctly rounded result, identical
 // to strconv.ParseFloat. Everything else (long mantissas, large exponents,
 // NaN, Inf, hexadecimal) goes to strconv.ParseFloat.
-func parseFloat(b []byte) (float64, bool) {
+func parseFloat[T string | []byte](b T) (float64, bool) {
 	i, n := 0, len(b)
 	if n == 0 {
 		return 0, false
@@ -93,7 +93,7 @@ func parseFloat(b []byte) (float64, bool) {
 }
 
 // slowFloat is the general path of parseFloat.
-func slowFloat(b []byte) (float64, bool) {
+func slowFloat[T string | []byte](b T) (float64, bool) {
 	f, err := strconv.ParseFloat(string(b), 64)
 	if err != nil {
 		// strconv reports overflow with ErrRange and +-Inf; a coordinate or
@@ -106,7 +106,7 @@ func slowFloat(b []byte) (float64, bool) {
 // isMissingToken reports whether a field spells a missing value in words
 // rather than as NaN: "NA", "N/A" or "null" (common practice in tabular
 // data exports).
-func isMissingToken(b []byte) bool {
+func isMissingToken[T string | []byte](b T) bool {
 	switch string(b) {
 	case "NA", "N/A", "na", "n/a", "null", "NULL":
 		return true

@@ -230,7 +230,7 @@ func metaLine(c []byte) (key, val string, ok bool) {
 func isSpace(c byte) bool { return c == ' ' || c == '\t' || c == '\r' || c == '\v' || c == '\f' }
 
 // coordField parses a coordinate field (column col, 0-based).
-func coordField(file string, line int, f []byte, col int, what string) (float64, error) {
+func coordField[T string | []byte](file string, line int, f T, col int, what string) (float64, error) {
 	v, ok := parseFloat(f)
 	if !ok {
 		return 0, inputErr(file, line, "column %d (%s): %q is not a number", col+1, what, f)
@@ -242,7 +242,7 @@ func coordField(file string, line int, f []byte, col int, what string) (float64,
 }
 
 // valueField parses a value field; NaN and the missing tokens give NaN.
-func valueField(file string, line int, f []byte, col int) (float64, error) {
+func valueField[T string | []byte](file string, line int, f T, col int) (float64, error) {
 	v, ok := parseFloat(f)
 	if !ok {
 		if isMissingToken(f) || len(f) == 0 {

@@ -67,6 +67,8 @@ type Surface struct {
 	sinLon []float64
 	cosLon []float64
 	bw, nb int
+	cmin   []float64 // per cell: bounds of the interpolants on its edges
+	cmax   []float64
 	bmin   []float64 // per band and block
 	bmax   []float64
 	barea  []float64
@@ -193,6 +195,20 @@ func NewSurface(f Field) (*Surface, error) {
 	s.cosLon = make([]float64, n)
 	for j := range n {
 		s.sinLon[j], s.cosLon[j] = math.Sincos((s.lon0 + float64(j)*s.dlon) * deg)
+	}
+	// Per-cell bounds of the edge interpolants, to skip cells no contour
+	// can enter.
+	s.cmin = make([]float64, (rows-1)*n)
+	s.cmax = make([]float64, (rows-1)*n)
+	for i := 0; i < rows-1; i++ {
+		for j := 0; j < n; j++ {
+			j1 := (j + 1) % n
+			e := math.Max(math.Max(s.slack(i, i, j, false), s.slack(i, i, j1, false)),
+				math.Max(s.slack(i, i, j, true), s.slack(i+1, i, j, true)))
+			lo := math.Min(math.Min(s.v[i*n+j], s.v[i*n+j1]), math.Min(s.v[(i+1)*n+j], s.v[(i+1)*n+j1]))
+			hi := math.Max(math.Max(s.v[i*n+j], s.v[i*n+j1]), math.Max(s.v[(i+1)*n+j], s.v[(i+1)*n+j1]))
+			s.cmin[i*n+j], s.cmax[i*n+j] = lo-e, hi+e
+		}
 	}
 	s.bw = blockWidth
 	s.nb = (n + s.bw - 1) / s.bw
@@ -672,6 +688,9 @@ func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int)
 			}
 			est += 0.5 * s.barea[k]
 			for j := b * s.bw; j < min((b+1)*s.bw, s.n); j++ {
+				if k := i*s.n + j; s.cmax[k] < c || s.cmin[k] >= c {
+					continue
+				}
 				ns := s.cellSegments(&out, &memo, sc, i, j, c)
 				for q := 0; q < ns; q++ {
 					fn(&out[q])

@@ -238,12 +238,7 @@ func (b *builder) build() (*Grid, error) {
 		}
 	}
 	if negRec >= 0 && overRec >= 0 {
-		first, second := negRec, overRec
-		if second < first {
-			first, second = second, first
-		}
-		_ = first
-		return nil, inputErr(b.file, b.line(second),
+		return nil, inputErr(b.file, b.line(max(negRec, overRec)),
 			"mixed longitude conventions: line %d has longitude %g (-180..180) and line %d has %g (0..360); use one convention throughout the file",
 			b.line(negRec), negV, b.line(overRec), overV)
 	}

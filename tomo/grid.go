@@ -44,6 +44,7 @@ type Grid struct {
 	// Values holds the field in the units named by Units.
 	Values []float64
 	// Valid marks the points that carry data; nil means all are valid.
+	// The text and CSV readers store NaN in Values at invalid points.
 	Valid []bool
 	// Name is the variable's name in the file (e.g. the CSV column or netCDF
 	// variable); Units its units as given ("percent", "fraction", "km/s", or

@@ -3,6 +3,7 @@ package sh
 import (
 	"fmt"
 	"math"
+	"sync/atomic"
 )
 
 // The associated Legendre functions are computed by the forward column
@@ -66,6 +67,61 @@ type plm struct {
 	lo, hi  []float64 // output multipliers: value = p * lo * hi
 	sm      float64   // sectoral mantissa of P_ll / 2^se
 	se      int
+	tab     *recTable // precomputed a_lm, b_lm, or nil
+}
+
+// recTable holds the recursion coefficients a_lm and b_lm at Index(l, m)
+// (m < l) for degrees up to lmax; a table serves every smaller lmax. The
+// values are computed by the same expressions as the on-the-fly path, so
+// results do not depend on whether a table is used.
+type recTable struct {
+	lmax int
+	a, b []float64
+}
+
+// recTableMax is the largest degree for which recursion coefficients are
+// kept in memory (16 bytes per coefficient: 8.4 MB at 1024).
+const recTableMax = 1024
+
+var recCache atomic.Pointer[recTable]
+
+// recFor returns a table covering lmax, or nil above recTableMax.
+func recFor(lmax int) *recTable {
+	if lmax > recTableMax {
+		return nil
+	}
+	if t := recCache.Load(); t != nil && t.lmax >= lmax {
+		return t
+	}
+	n := max(lmax, 64)
+	t := &recTable{lmax: n, a: make([]float64, NumCoeffs(n)), b: make([]float64, NumCoeffs(n))}
+	for l := 1; l <= n; l++ {
+		fl := float64(l)
+		A := (2*fl - 1) * (2*fl + 1)
+		var B float64
+		if l >= 2 {
+			B = (2*fl + 1) / (2*fl - 3)
+		}
+		i0 := Index(l, 0)
+		for m := 0; m < l; m++ {
+			a, b := recCoef(fl, float64(m), A, B)
+			t.a[i0+m], t.b[i0+m] = a, b
+		}
+	}
+	// Concurrent callers may each build a table; any of them is correct.
+	if old := recCache.Load(); old == nil || old.lmax < t.lmax {
+		recCache.Store(t)
+	}
+	return t
+}
+
+// recCoef returns a_lm and b_lm of the column recursion, given
+// A = (2l-1)(2l+1) and B = (2l+1)/(2l-3) (0 for l = 1).
+func recCoef(fl, fm, A, B float64) (a, b float64) {
+	inv := 1 / ((fl - fm) * (fl + fm))
+	a = math.Sqrt(A * inv)
+	b = math.Sqrt(B * ((fl - 1 - fm) * (fl - 1 + fm)) * inv)
+	return a, b
 }
 
 // reset prepares the generator for degrees 0..lmax at colatitude colat
@@ -102,6 +158,7 @@ func (g *plm) reset(lmax int, colat float64) {
 	}
 	g.p, g.q, g.ex, g.lo, g.hi = g.p[:n], g.q[:n], g.ex[:n], g.lo[:n], g.hi[:n]
 	g.l = -1
+	g.tab = recFor(lmax)
 }
 
 // setScale sets the output multipliers of column m from its exponent. The
@@ -147,9 +204,18 @@ func (g *plm) next(out []float64) int {
 	if g.reinsch {
 		k := 1 / (2*fl - 1)
 		h := g.h
+		var ta []float64
+		if g.tab != nil {
+			ta = g.tab.a[Index(l, 0):]
+		}
 		for m := 0; m < l; m++ {
 			fm := float64(m)
-			a := math.Sqrt(A / ((fl - fm) * (fl + fm)))
+			var a float64
+			if ta != nil {
+				a = ta[m]
+			} else {
+				a = math.Sqrt(A * (1 / ((fl - fm) * (fl + fm)))) // as in recCoef
+			}
 			c := a * k
 			r := c * (fl + fm)
 			amr := c * (fl - fm - 1)
@@ -168,11 +234,18 @@ func (g *plm) next(out []float64) int {
 			B = (2*fl + 1) / (2*fl - 3)
 		}
 		x := g.x
+		var ta, tb []float64
+		if g.tab != nil {
+			i0 := Index(l, 0)
+			ta, tb = g.tab.a[i0:i0+l], g.tab.b[i0:i0+l]
+		}
 		for m := 0; m < l; m++ {
-			fm := float64(m)
-			inv := 1 / ((fl - fm) * (fl + fm))
-			a := math.Sqrt(A * inv)
-			b := math.Sqrt(B * ((fl - 1 - fm) * (fl - 1 + fm)) * inv)
+			var a, b float64
+			if ta != nil {
+				a, b = ta[m], tb[m]
+			} else {
+				a, b = recCoef(fl, float64(m), A, B)
+			}
 			v := a*x*p[m] - b*q[m]
 			p[m], q[m] = v, p[m]
 			if math.Abs(v) > rescaleBig {

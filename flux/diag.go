@@ -57,12 +57,14 @@ type Diagnostics struct {
 	// Amplitude is a in q = q_mean (1 + a g).
 	Amplitude float64 `json:"amplitude"`
 	// Physical mode only: mantle conductivity (W/m/K), boundary-layer
-	// thickness (km), dlnVs/dT (1/K) and the temperature anomaly range (K).
+	// thickness (km), dlnVs/dT (1/K), and the temperature anomaly of the
+	// mantle (K) where the flux is highest (cold, negative) and lowest
+	// (hot, positive).
 	Conductivity   float64 `json:"k_mantle,omitempty"`
 	ThicknessKm    float64 `json:"tbl_thickness_km,omitempty"`
 	DlnVsDT        float64 `json:"dlnvs_dt,omitempty"`
-	TemperatureMax float64 `json:"dt_max_k,omitempty"`
-	TemperatureMin float64 `json:"dt_min_k,omitempty"`
+	TemperatureMax float64 `json:"dt_at_q_max_k,omitempty"`
+	TemperatureMin float64 `json:"dt_at_q_min_k,omitempty"`
 }
 
 // fractionBelow returns the fraction of the sphere where g < level: the

@@ -65,6 +65,18 @@ func newDenseGrid(c *sh.Coeffs, nr int, deriv bool) *denseGrid {
 	g := &denseGrid{nlon: 2 * nr}
 	g.colat = append(append([]float64{0}, gl.Colat...), math.Pi)
 	n := len(g.colat) * g.nlon
+	if !deriv {
+		// Values only: the fast transform of flux/sh for the rings, the
+		// evaluator for the poles.
+		g.v = make([]float64, n)
+		sh.NewTransform(c.LMax, gl).Synthesis(g.v[g.nlon:n-g.nlon], c)
+		ev := sh.NewEvaluator(c)
+		north, south := ev.Value(0, 0), ev.Value(math.Pi, 0)
+		for j := 0; j < g.nlon; j++ {
+			g.v[j], g.v[n-g.nlon+j] = north, south
+		}
+		return g
+	}
 	g.v = make([]float64, n)
 	if deriv {
 		g.dth = make([]float64, n)

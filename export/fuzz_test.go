@@ -12,7 +12,7 @@ import (
 // seedCoeffFiles returns files written by this package, for the corpora.
 func seedCoeffFiles(f Format) [][]byte {
 	var out [][]byte
-	c := randomCoeffs(3, sh.Canonical, 9)
+	c := randomCoeffs(2, sh.Canonical, 9) // small seeds keep minimization quick
 	for _, opt := range []CoeffOptions{{}, {Complex: true, NegativeOrders: true}, {Order: MMajor, OmitDegree0: true}} {
 		var b bytes.Buffer
 		WriteCoeffs(&b, f, c, testMeta(), &opt)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -424,5 +425,51 @@ func TestOutlineWorldWithHoleAcrossAntimeridian(t *testing.T) {
 	want := 4*math.Pi*r*r - 2*capArea(r, 10)
 	if e := relErr(c.Features[0].Props[PropAreaKm2].(float64), want); e > 1e-5 {
 		t.Errorf("area %v, want %v", c.Features[0].Props[PropAreaKm2], want)
+	}
+}
+
+// Random caps anywhere (across the antimeridian, around or through a pole),
+// either orientation: every output must be valid RFC 7946, and the areas
+// of the split patches (lon-lat edges) must agree with the whole outline's
+// (great-circle edges) to the discretisation error.
+func TestOutlineRandomCaps(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	for k := range 120 {
+		lon, lat := rng.Float64()*360-180, math.Asin(2*rng.Float64()-1)/deg
+		alpha := 1 + rng.Float64()*60
+		ccw := rng.IntN(2) == 0
+		if k%10 == 0 {
+			lon = 180 // right on the antimeridian
+		}
+		rings := [][][2]float64{smallCircle(lon, lat, alpha, 720, ccw)}
+		var buf bytes.Buffer
+		err := WriteOutlines(&buf, []Outline{{Rings: rings}, {Rings: rings, Split: true}}, nil)
+		if err != nil {
+			t.Fatalf("cap (%v, %v, %v, ccw=%v): %v", lon, lat, alpha, ccw, err)
+		}
+		var c fc
+		if err := json.Unmarshal(buf.Bytes(), &c); err != nil {
+			t.Fatal(err)
+		}
+		whole := c.Features[0].Props[PropAreaKm2].(float64)
+		sum := 0.0
+		for _, f := range c.Features {
+			checkRFC7946(t, f.Geometry)
+		}
+		for _, f := range c.Features[1:] {
+			sum += f.Props[PropAreaKm2].(float64)
+		}
+		want := capArea(DefaultRadiusKm, alpha)
+		if !ccw {
+			want = 4*math.Pi*DefaultRadiusKm*DefaultRadiusKm - want
+		}
+		// 720 vertices: chords and lon-lat lines stay within 1e-3 of the
+		// circle's area even for caps through a pole.
+		if e := relErr(whole, want); e > 1e-4 {
+			t.Errorf("cap (%v, %v, %v, ccw=%v): area %v, want %v", lon, lat, alpha, ccw, whole, want)
+		}
+		if e := relErr(sum, want); e > 1e-3 {
+			t.Errorf("cap (%v, %v, %v, ccw=%v): split area %v, want %v", lon, lat, alpha, ccw, sum, want)
+		}
 	}
 }

@@ -159,3 +159,32 @@ func TestSelectLayerMasks(t *testing.T) {
 		t.Errorf("grid without depth: %v %+v", err, l)
 	}
 }
+
+func TestSelectLayerEmptyLevel(t *testing.T) {
+	g := depthGrid([]float64{2800, 2891}, []float64{1, 2})
+	g.Source.Path = "e.txt"
+	g.Valid = make([]bool, len(g.Values))
+	for s := 0; s < 8; s++ {
+		g.Valid[s] = true // only the 2800 km level has data
+	}
+	if _, err := SelectLayer(g, LayerOptions{}); err == nil || !strings.Contains(err.Error(), "e.txt: the selected layer (the deepest level: 2891 km (level 2 of 2)) has no valid points") {
+		t.Errorf("empty deepest level: %v", err)
+	}
+	l, err := SelectLayer(g, LayerOptions{Depth: 2800})
+	if err != nil || l.Valid != nil || math.Abs(l.Mean-0.01) > unitTol {
+		t.Errorf("2800 km level: %v %+v", err, l)
+	}
+}
+
+// TestReadTextLineEndings reads the same grid with Unix and Windows line
+// endings and tab separators.
+func TestReadTextLineEndings(t *testing.T) {
+	unix := gridText(steps(0, 90, 4), []float64{-45, 45}, nil, fieldText, 13)
+	for _, text := range []string{unix, strings.ReplaceAll(unix, "\n", "\r\n"), strings.ReplaceAll(unix, " ", "\t"), strings.TrimSuffix(unix, "\n")} {
+		g, err := ReadText("e.txt", []byte(text), ReadOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkField(t, g, func(l float64) float64 { return l })
+	}
+}

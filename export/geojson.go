@@ -27,6 +27,7 @@ import (
 // Consecutive vertices are joined the short way in longitude, so longitudes
 // may come in any range, with jumps of 360 degrees at a seam.
 type Outline struct {
+	// Rings bound the region (see above).
 	Rings [][][2]float64
 	// Props are written as the feature's properties, after the computed
 	// ones (see WriteOutlines), whose names they must not reuse.

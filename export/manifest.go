@@ -48,17 +48,17 @@ type Manifest struct {
 
 // ManifestInput is an input file of a build.
 type ManifestInput struct {
-	Name   string `yaml:"name"`
-	SHA256 string `yaml:"sha256"`
-	Size   int64  `yaml:"size,omitempty"`
-	Format string `yaml:"format,omitempty"`
+	Name   string `yaml:"name"`             // path or label as given by the user
+	SHA256 string `yaml:"sha256"`           // hex sha256 of the bytes read
+	Size   int64  `yaml:"size,omitempty"`   // bytes, when known
+	Format string `yaml:"format,omitempty"` // format as detected, e.g. "netcdf-cdf1"
 }
 
 // ManifestFile is an output file of a build.
 type ManifestFile struct {
-	Name   string `yaml:"name"`
-	Size   int64  `yaml:"size"`
-	SHA256 string `yaml:"sha256"`
+	Name   string `yaml:"name"`   // slash-separated, relative to the folder
+	Size   int64  `yaml:"size"`   // bytes
+	SHA256 string `yaml:"sha256"` // hex sha256 of the content
 }
 
 // HashFile returns the size and the hex sha256 of the file at path.

@@ -40,8 +40,8 @@ type Meta struct {
 
 // Input names an input file and the hex sha256 of its bytes.
 type Input struct {
-	Name   string `json:"name" yaml:"name"`
-	SHA256 string `json:"sha256" yaml:"sha256"`
+	Name   string `json:"name" yaml:"name"`     // path or label as given by the user
+	SHA256 string `json:"sha256" yaml:"sha256"` // hex sha256 of the file's bytes
 }
 
 func (m *Meta) radiusKm() float64 {

@@ -17,6 +17,7 @@ import (
 
 // GridTable is a grid file as read by ReadGrid.
 type GridTable struct {
+	// Grid holds the coordinates and values as read.
 	Grid *Grid
 	// Meta holds the quantity, units, sign, reference radius and
 	// provenance found in the file.

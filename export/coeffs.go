@@ -218,9 +218,9 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 	}
 	t.header = []kv{
 		{"format", "cmbflux-coefficients/" + strconv.Itoa(FormatVersion)},
-		{"quantity", meta.Quantity},
-		{"units", meta.Units},
-		{"sign", meta.Sign},
+		{"quantity", orUnspecified(meta.Quantity)},
+		{"units", orUnspecified(meta.Units)},
+		{"sign", orUnspecified(meta.Sign)},
 		{"form", form},
 		{"normalization", opt.Conv.Norm.String()},
 		{"condon_shortley_phase", csText(opt.Conv.CondonShortley)},

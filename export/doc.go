@@ -39,7 +39,8 @@
 //	input                 "<sha256> <name>" of an input file (one line per input)
 //	param.<name>          every parameter of the build, defaults resolved, sorted by name
 //
-// In JSON, reference_radius_km, lmax and rows are numbers, columns a list,
+// A quantity, units or sign the caller left empty is written as
+// "unspecified". In JSON, reference_radius_km, lmax and rows are numbers, columns a list,
 // the inputs a list "inputs" of {"name", "sha256"} objects, the parameters
 // an object "parameters", and the rows a list "data" of [l, m, a, b].
 //

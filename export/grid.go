@@ -106,9 +106,9 @@ func gridHeader(g *Grid, meta *Meta) []kv {
 	}
 	h := []kv{
 		{"format", "cmbflux-grid/" + strconv.Itoa(FormatVersion)},
-		{"quantity", meta.Quantity},
-		{"units", meta.Units},
-		{"sign", meta.Sign},
+		{"quantity", orUnspecified(meta.Quantity)},
+		{"units", orUnspecified(meta.Units)},
+		{"sign", orUnspecified(meta.Sign)},
 		{"variable", g.name()},
 		{"grid", kind},
 		{"nlon", strconv.Itoa(len(g.Lon))},

@@ -140,3 +140,12 @@ func (e *InputError) Unwrap() []error { return []error{e.Err, ErrBadInput} }
 func inputErr(file string, line int, format string, args ...any) error {
 	return &InputError{File: file, Line: line, Err: fmt.Errorf(format, args...)}
 }
+
+// orUnspecified returns s, or "unspecified" when s is empty, so that a
+// header never leaves a key blank.
+func orUnspecified(s string) string {
+	if s == "" {
+		return "unspecified"
+	}
+	return s
+}

@@ -2,6 +2,9 @@ package flux
 
 import (
 	"fmt"
+	"math"
+	"strconv"
+	"strings"
 
 	"cmbflux/flux/sh"
 )
@@ -54,4 +57,43 @@ func Ideal(opt *PatternOptions, terms ...Term) (*Pattern, error) {
 		return nil, err
 	}
 	return NewPattern(c, opt)
+}
+
+// ParseTerm reads a harmonic term written L:M[:cos|sin][:WEIGHT], for
+// example "2:2", "3:1:sin" or "1:0:cos:0.5" (cos and weight 1 by default).
+func ParseTerm(s string) (Term, error) {
+	parts := strings.Split(strings.TrimSpace(s), ":")
+	bad := func(why string) (Term, error) {
+		return Term{}, fmt.Errorf("%w: harmonic %q: %s; want L:M[:cos|sin][:WEIGHT], e.g. 2:2 or 3:1:sin:0.5", ErrSetting, s, why)
+	}
+	if len(parts) < 2 || len(parts) > 4 {
+		return bad("wrong number of fields")
+	}
+	l, err1 := strconv.Atoi(parts[0])
+	m, err2 := strconv.Atoi(parts[1])
+	if err1 != nil || err2 != nil {
+		return bad("degree and order must be integers")
+	}
+	t := Term{L: l, M: m, Weight: 1}
+	for _, p := range parts[2:] {
+		switch strings.ToLower(p) {
+		case "cos", "c":
+			t.Sin = false
+		case "sin", "s":
+			t.Sin = true
+		default:
+			w, err := strconv.ParseFloat(p, 64)
+			if err != nil || math.IsNaN(w) || math.IsInf(w, 0) {
+				return bad("the weight must be a finite number")
+			}
+			t.Weight = w
+		}
+	}
+	if l < 1 || m < 0 || m > l {
+		return bad("need 1 <= L and 0 <= M <= L")
+	}
+	if t.Sin && m == 0 {
+		return bad("order 0 has no sine part")
+	}
+	return t, nil
 }

@@ -195,6 +195,19 @@ type SampleGrid struct {
 	Lon, Lat []float64
 }
 
+// SampleGridOf returns the points of an sh.Grid (ring colatitudes and
+// longitudes in radians) as a SampleGrid named name, for MeasuredOn.
+func SampleGridOf(name string, g *sh.Grid) *SampleGrid {
+	sg := &SampleGrid{Name: name}
+	for _, th := range g.Colat {
+		sg.Lat = append(sg.Lat, 90-th*rad2deg)
+	}
+	for j := 0; j < g.NLon; j++ {
+		sg.Lon = append(sg.Lon, g.Lon(j)*rad2deg)
+	}
+	return sg
+}
+
 // MeasuredOn returns a copy of p whose amplitude control uses the extremes
 // of g sampled on grid instead of those of the continuous field. Results
 // built from it say so in Diagnostics.QStarMeasuredOn and warn that the

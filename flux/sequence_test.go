@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"cmbflux/flux/contour"
+	"cmbflux/flux/sh"
 )
 
 func TestSpinAboutGeographicPole(t *testing.T) {
@@ -217,5 +218,40 @@ func TestConcurrentBuilds(t *testing.T) {
 		if e := <-errs; e != "" {
 			t.Error(e)
 		}
+	}
+}
+
+func TestParseTerm(t *testing.T) {
+	for s, want := range map[string]Term{
+		"2:2":         {L: 2, M: 2, Weight: 1},
+		"3:1:sin":     {L: 3, M: 1, Sin: true, Weight: 1},
+		"1:0:cos:0.5": {L: 1, M: 0, Weight: 0.5},
+		" 4:3:s:-2 ":  {L: 4, M: 3, Sin: true, Weight: -2},
+	} {
+		got, err := ParseTerm(s)
+		if err != nil || got != want {
+			t.Errorf("ParseTerm(%q) = %+v, %v; want %+v", s, got, err, want)
+		}
+	}
+	for _, s := range []string{"", "2", "0:0", "2:3", "2:0:sin", "2:1:tan", "a:b", "1:1:cos:nan"} {
+		if _, err := ParseTerm(s); err == nil {
+			t.Errorf("ParseTerm(%q): no error", s)
+		}
+	}
+}
+
+func TestSampleGridOf(t *testing.T) {
+	// On a Gauss-Legendre grid with 2 longitudes per 90 degrees the Y_2^2
+	// extremes (lon 0, 90, ...) are sampled, so grid and continuous q*
+	// agree up to the latitude of the ring nearest the equator.
+	p, _ := Ideal(nil, Term{L: 2, M: 2, Weight: 1})
+	g := sh.NewGaussLegendre(9, 16) // odd: the equator is a ring
+	pg, err := p.MeasuredOn(SampleGridOf("gauss:9", g))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, _ := pg.WithQStar(2, Reference{QMean: 0.05})
+	if !near(r.Diagnostics.QStarContinuous, 2, 1e-9) || r.Diagnostics.QStarMeasuredOn != "gauss:9" {
+		t.Errorf("q* continuous %g on %q, want 2 on gauss:9", r.Diagnostics.QStarContinuous, r.Diagnostics.QStarMeasuredOn)
 	}
 }

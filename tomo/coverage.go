@@ -51,10 +51,12 @@ func weightedMean(vals []float64, valid []bool, lat []float64, nlon int) (float6
 // points of the layer, each point standing for its cell (between
 // lat -+ dlat/2, clipped to the poles, and lon -+ dlon/2). Parts of the
 // sphere outside the grid's latitude range count as uncovered. The result
-// is in [0, 1].
+// is in [0, 1]. A regional grid (longitudes not all round the globe) is
+// measured against the whole sphere too.
 func (l *Layer) Coverage() float64 {
 	w := rowWeights(l.Lat)
 	nlon := len(l.Lon)
+	cell := lonStep(l.Lon) / 360 // fraction of a band in one longitude cell
 	var c float64
 	for j := range l.Lat {
 		n := 0
@@ -63,7 +65,7 @@ func (l *Layer) Coverage() float64 {
 				n++
 			}
 		}
-		c += w[j] * float64(n) / float64(nlon)
+		c += w[j] * float64(n) * cell
 	}
 	return math.Min(1, c)
 }
@@ -98,7 +100,8 @@ const maxGapWork = 20_000_000
 // SafeDegree estimates the largest spherical-harmonic degree the layer
 // supports, from its grid spacing and from its largest gap in coverage;
 // see DegreeLimit. The gap is measured on the global grid that extends the
-// layer's latitude lattice to the poles, so uncovered polar caps count.
+// layer's latitude lattice to the poles and its longitude lattice round the
+// globe, so uncovered polar caps and the outside of a regional grid count.
 // Large grids with many missing points are searched on a coarser copy
 // (a coarse cell is valid when any of its points is) and the coarse cell's
 // diagonal is added to the gap, which errs towards a lower degree.
@@ -108,7 +111,7 @@ func SafeDegree(l *Layer) DegreeLimit {
 	if len(l.Lon) == 0 || len(l.Lat) == 0 || len(l.Values) != len(l.Lon)*len(l.Lat) {
 		panic("tomo: SafeDegree of a layer without a complete grid")
 	}
-	dlon := 360.0 / float64(len(l.Lon))
+	dlon := lonStep(l.Lon)
 	dlat := 180.0
 	if len(l.Lat) > 1 {
 		dlat = (l.Lat[len(l.Lat)-1] - l.Lat[0]) / float64(len(l.Lat)-1)
@@ -130,15 +133,19 @@ func SafeDegree(l *Layer) DegreeLimit {
 	for v := l.Lat[len(l.Lat)-1] + dlat; v <= 90+1e-9; v += dlat {
 		lats = append(lats, v)
 	}
-	nlon := len(l.Lon)
+	// Extend the longitude lattice round the globe (for regional grids).
+	lnlon := len(l.Lon)
+	nlon := max(lnlon, int(math.Round(360/dlon)))
+	lonDeg := make([]float64, nlon)
+	for i := range lonDeg {
+		lonDeg[i] = l.Lon[0] + float64(i)*dlon
+	}
 	valid := make([]bool, len(lats)*nlon)
 	for j := range l.Lat {
-		for i := 0; i < nlon; i++ {
-			ok := l.Valid == nil || l.Valid[j*nlon+i]
-			valid[(south+j)*nlon+i] = ok
+		for i := 0; i < lnlon; i++ {
+			valid[(south+j)*nlon+i] = l.Valid == nil || l.Valid[j*lnlon+i]
 		}
 	}
-	lonDeg := append([]float64(nil), l.Lon...)
 	pad := 0.0
 	holes, edges := gapCounts(valid, len(lats), nlon)
 	gapped := holes > 0
@@ -191,6 +198,15 @@ func isEdge(valid []bool, nlat, nlon, j, i int) bool {
 		}
 	}
 	return false
+}
+
+// lonStep returns the longitude spacing of an evenly spaced axis in
+// degrees, or 360 for a single longitude.
+func lonStep(lon []float64) float64 {
+	if len(lon) < 2 {
+		return 360
+	}
+	return (lon[len(lon)-1] - lon[0]) / float64(len(lon)-1)
 }
 
 // coarsen merges f x f blocks of points; a block is valid when any of its

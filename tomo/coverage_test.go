@@ -81,3 +81,26 @@ func TestSafeDegree(t *testing.T) {
 		t.Errorf("sprinkled mask: %+v", sprinkled)
 	}
 }
+
+// TestRegionalLayer: a grid covering a quarter of the longitudes covers a
+// quarter of the sphere (the sphere's area is evenly spread in longitude);
+// the missing three quarters are one large gap (nearly 180 degrees across:
+// the valid points next to the poles are within 90 degrees of everything).
+func TestRegionalLayer(t *testing.T) {
+	g := &Grid{Lon: steps(5, 10, 9), Lat: steps(-85, 10, 18), Units: UnitPercent, Source: Provenance{Path: "r.nc"}}
+	g.Values = make([]float64, 9*18)
+	l, err := SelectLayer(g, LayerOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := l.Coverage(); math.Abs(c-0.25) > covTol {
+		t.Errorf("Coverage = %g, want 0.25", c)
+	}
+	if !containsAny(l.Warnings, "the grid is regional: longitudes 5..85 cover 90 of 360 degrees") {
+		t.Errorf("Warnings = %q", l.Warnings)
+	}
+	lim := SafeDegree(l)
+	if lim.Gap < 150 || lim.Lmax > 1 || lim.Nyquist != 18 {
+		t.Errorf("regional grid: %+v", lim)
+	}
+}

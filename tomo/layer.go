@@ -11,8 +11,9 @@ import (
 // average of several.
 //
 // Values[j*len(Lon) + i] is dlnVs (a fraction, not percent) at Lat[j],
-// Lon[i]; Lon ascends in [0, 360) and covers the globe, Lat ascends (south
-// to north).
+// Lon[i]; Lon ascends in [0, 360) and is evenly spaced (the text and CSV
+// readers accept only global longitudes; a netCDF grid may be regional,
+// with a warning), Lat ascends (south to north) and is evenly spaced.
 type Layer struct {
 	Lon, Lat []float64 // degrees east and north
 	Values   []float64 // dlnVs as a fraction
@@ -93,6 +94,10 @@ func SelectLayer(g *Grid, opts LayerOptions) (*Layer, error) {
 		Lon: append([]float64(nil), g.Lon...), Lat: append([]float64(nil), g.Lat...),
 		Values: make([]float64, plane), Reg: g.Reg, Units: rep, Source: g.Source, Title: g.Title,
 		Warnings: append([]string(nil), ng.Warnings...),
+	}
+	if dl := lonStep(g.Lon); len(g.Lon) > 1 && math.Abs(float64(len(g.Lon))*dl-360) > 1e-6*dl {
+		l.Warnings = append(l.Warnings, fmt.Sprintf("the grid is regional: longitudes %g..%g cover %g of 360 degrees; the rest of the sphere counts as missing data",
+			g.Lon[0], g.Lon[len(g.Lon)-1], float64(len(g.Lon))*dl))
 	}
 	var levels []int
 	switch {

@@ -62,8 +62,9 @@ func (f *realFFT) forward(dst []complex128, x []float64) {
 	for k := 0; k <= h/2; k++ {
 		zk := z[k%h]
 		zm := cmplx.Conj(z[(h-k)%h])
-		e := (zk + zm) / 2
-		o := (zk - zm) * complex(0, -0.5)
+		sum, dif := zk+zm, zk-zm
+		e := complex(0.5*real(sum), 0.5*imag(sum))
+		o := complex(0.5*imag(dif), -0.5*real(dif)) // (zk - zm)/(2i)
 		dst[k] = e + tw[k]*o
 		// Mirror: X_{h-k} from the same pair.
 		if k > 0 && h-k != k {
@@ -199,6 +200,25 @@ func radix2(st *fftStage, x, y []complex128) {
 
 func radix4(st *fftStage, x, y []complex128) {
 	m, s := st.m, st.s
+	if s < 8 {
+		// Short inner runs: loop over p inside, without reslicing.
+		w := st.w[:3*m]
+		for q := range s {
+			for p := range m {
+				a0, a1 := x[q+s*p], x[q+s*(p+m)]
+				a2, a3 := x[q+s*(p+2*m)], x[q+s*(p+3*m)]
+				s02, d02 := a0+a2, a0-a2
+				s13, d13 := a1+a3, a1-a3
+				md := complex(imag(d13), -real(d13))
+				o := q + s*4*p
+				y[o] = s02 + s13
+				y[o+s] = (d02 + md) * w[3*p]
+				y[o+2*s] = (s02 - s13) * w[3*p+1]
+				y[o+3*s] = (d02 - md) * w[3*p+2]
+			}
+		}
+		return
+	}
 	for p := range m {
 		w1, w2, w3 := st.w[3*p], st.w[3*p+1], st.w[3*p+2]
 		x0 := x[s*p : s*p+s]

@@ -277,9 +277,9 @@ func foldValue(z complex128, mode int) complex128 {
 	case 0:
 		return complex(real(z), 0)
 	case 1:
-		return z / 2
+		return complex(0.5*real(z), 0.5*imag(z))
 	}
-	return cmplx.Conj(z) / 2
+	return complex(0.5*real(z), -0.5*imag(z))
 }
 
 // Analysis computes the coefficients of degree <= LMax of the field on the

@@ -122,6 +122,7 @@ func init() {
 		{"inspect", "describe a tomography grid or a coefficient file", runInspect},
 		{"convert", "change the convention of a coefficient file, or go between grid and coefficients", runConvert},
 		{"plot", "draw a map and a spectrum of a grid or coefficient file", runPlot},
+		{"compare", "compare tomography models at the base of the mantle", runCompare},
 		{"demo", "run the whole job on the embedded demo scenario and write the report", runDemo},
 	}
 }

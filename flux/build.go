@@ -124,16 +124,98 @@ type Result struct {
 // MeasuredOn): a = q* / (g_max - g_min). The extrema scale with a, so no
 // search is repeated: a sweep over q* costs little per point.
 func (p *Pattern) WithQStar(qstar float64, ref Reference) (*Result, error) {
-	if math.IsNaN(qstar) || math.IsInf(qstar, 0) || qstar < 0 {
-		return nil, fmt.Errorf("%w: q* = %g: give a value of 0 or more (q* = (q_max - q_min)/q_mean)", ErrSetting, qstar)
+	return p.WithMeasure(PeakToPeak, qstar, ref)
+}
+
+// Measure names a measure of the flux heterogeneity that can set the
+// amplitude. All are linear in the amplitude a of q = q_mean (1 + a g).
+type Measure int
+
+const (
+	// PeakToPeak is q* = (q_max - q_min) / q_mean (the usual definition).
+	PeakToPeak Measure = iota
+	// PeakToPeakSuperadiabatic is (q_max - q_min) / (q_mean - q_ad), the
+	// ratio over the mean super-adiabatic flux; needs q_ad < q_mean.
+	PeakToPeakSuperadiabatic
+	// RMS is the root mean square of q - q_mean over q_mean.
+	RMS
+	// MaxDeviation is max |q - q_mean| / q_mean.
+	MaxDeviation
+)
+
+var measureNames = [...]string{"qstar", "qstar-superadiabatic", "rms", "max-deviation"}
+
+var measureFormulas = [...]string{
+	"(q_max - q_min)/q_mean",
+	"(q_max - q_min)/(q_mean - q_ad)",
+	"rms(q - q_mean)/q_mean",
+	"max|q - q_mean|/q_mean",
+}
+
+// String returns the measure's name (as ParseMeasure accepts it).
+func (m Measure) String() string {
+	if m < 0 || int(m) >= len(measureNames) {
+		return fmt.Sprintf("Measure(%d)", int(m))
+	}
+	return measureNames[m]
+}
+
+// Formula returns the measure's definition, e.g. "(q_max - q_min)/q_mean".
+func (m Measure) Formula() string {
+	if m < 0 || int(m) >= len(measureFormulas) {
+		return "unknown"
+	}
+	return measureFormulas[m]
+}
+
+// ParseMeasure accepts the names of the measures: qstar,
+// qstar-superadiabatic, rms, max-deviation.
+func ParseMeasure(s string) (Measure, error) {
+	for k, n := range measureNames {
+		if s == n {
+			return Measure(k), nil
+		}
+	}
+	return 0, fmt.Errorf("%w: unknown amplitude measure %q (want qstar, qstar-superadiabatic, rms or max-deviation)", ErrSetting, s)
+}
+
+// WithMeasure builds the boundary condition whose heterogeneity measure m
+// equals value; the extrema (continuous, or on the grid of MeasuredOn) and
+// the rms come from the Pattern, so a sweep costs little per point. Results
+// set by a measure other than PeakToPeak say so in
+// Diagnostics.AmplitudeSetBy and warn, since simulation codes usually quote
+// the peak-to-peak q*.
+func (p *Pattern) WithMeasure(m Measure, value float64, ref Reference) (*Result, error) {
+	if math.IsNaN(value) || math.IsInf(value, 0) || value < 0 {
+		return nil, fmt.Errorf("%w: %s = %g: give a value of 0 or more (%s = %s)", ErrSetting, m, value, m, m.Formula())
 	}
 	qm, qad, hasAd, err := ref.resolve()
 	if err != nil {
 		return nil, err
 	}
-	a := qstar / (p.refMax - p.refMin)
-	r := p.result(a, qm, qad, hasAd, ref.KCore)
-	r.Diagnostics.Mode = "ratio"
+	var unit float64 // the measure per unit amplitude a
+	switch m {
+	case PeakToPeak:
+		unit = p.refMax - p.refMin
+	case PeakToPeakSuperadiabatic:
+		if !hasAd || qad >= qm {
+			return nil, fmt.Errorf("%w: %s needs an adiabatic flux below the mean flux", ErrSetting, m)
+		}
+		unit = (p.refMax - p.refMin) * qm / (qm - qad)
+	case RMS:
+		unit = p.rms
+	case MaxDeviation:
+		unit = math.Max(p.max.value, -p.min.value)
+	default:
+		return nil, fmt.Errorf("%w: unknown measure %d", ErrSetting, int(m))
+	}
+	r := p.result(value/unit, qm, qad, hasAd, ref.KCore)
+	d := &r.Diagnostics
+	d.Mode = "ratio"
+	d.AmplitudeSetBy = fmt.Sprintf("%s = %.6g", m.Formula(), value)
+	if m != PeakToPeak {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("q* definition: the amplitude is set by %s = %.4g, not by q* = (q_max - q_min)/q_mean, which is %.4g; check which definition the simulation code quotes", m.Formula(), value, d.QStar))
+	}
 	return r, nil
 }
 
@@ -152,6 +234,7 @@ func (p *Pattern) WithPhysical(ph Physical, ref Reference) (*Result, error) {
 	r := p.result(a, qm, qad, hasAd, ref.KCore)
 	d := &r.Diagnostics
 	d.Mode = "physical"
+	d.AmplitudeSetBy = "dq = -(k/h) dT, dT = dlnVs/(dlnVs/dT)"
 	d.Conductivity = ph.Conductivity
 	d.ThicknessKm = ph.Thickness / 1e3
 	d.DlnVsDT = ph.DlnVsDT

@@ -12,6 +12,12 @@ import (
 type Diagnostics struct {
 	// Mode is "ratio" (amplitude from q*) or "physical" (from constants).
 	Mode string `json:"mode"`
+	// AmplitudeSetBy states what fixed the amplitude, e.g.
+	// "(q_max - q_min)/q_mean = 3" or the physical-mode relation.
+	AmplitudeSetBy string `json:"amplitude_set_by"`
+	// QStarDefinition is the definition of QStar,
+	// "(q_max - q_min)/q_mean".
+	QStarDefinition string `json:"qstar_definition"`
 	// QStar is (q_max - q_min) / q_mean where the amplitude was set: on the
 	// continuous field, or on the grid named by QStarMeasuredOn.
 	QStar float64 `json:"qstar"`
@@ -131,6 +137,7 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 	d := &r.Diagnostics
 	const mw = 1e3
 	qmax, qmin := qm*(1+a*p.max.value), qm*(1+a*p.min.value)
+	d.QStarDefinition = PeakToPeak.Formula()
 	d.QStar = a * (p.refMax - p.refMin)
 	d.QStarContinuous = a * (p.max.value - p.min.value)
 	d.QStarMeasuredOn = "continuous field"

@@ -602,3 +602,46 @@ func TestRegionsInsideOneCell(t *testing.T) {
 		t.Errorf("sub-adiabatic fraction %.9f, want %.9f", *r.Diagnostics.AreaFractionSubadiabatic, want)
 	}
 }
+
+func TestAmplitudeMeasures(t *testing.T) {
+	// Each measure set to a value must read back that value from the
+	// diagnostics (definitions in Measure; linear in the amplitude), and the
+	// peak-to-peak q* must follow the closed forms of Y_1^0 (see
+	// TestAmplitudeMeasuresY10): rms = q*/(2 sqrt 3), max deviation = q*/2,
+	// super-adiabatic ratio = q*/(1 - r).
+	p, _ := Ideal(nil, Term{L: 1, M: 0, Weight: 1})
+	const r = 0.4
+	ref := Reference{QMean: 0.05, QAd: r * 0.05}
+	for _, c := range []struct {
+		m     Measure
+		value float64
+		qstar float64
+	}{
+		{PeakToPeak, 3, 3},
+		{PeakToPeakSuperadiabatic, 3, 3 * (1 - r)},
+		{RMS, 0.5, 0.5 * 2 * math.Sqrt(3)},
+		{MaxDeviation, 0.7, 1.4},
+	} {
+		res, err := p.WithMeasure(c.m, c.value, ref)
+		if err != nil {
+			t.Fatal(err)
+		}
+		d := res.Diagnostics
+		if !near(d.QStar, c.qstar, tolRel) {
+			t.Errorf("%s = %g: q* %g, want %g", c.m, c.value, d.QStar, c.qstar)
+		}
+		back := map[Measure]float64{PeakToPeak: d.QStar, PeakToPeakSuperadiabatic: *d.QStarSuperadiabatic, RMS: d.RMSOverMean, MaxDeviation: d.MaxDeviationOverMean}[c.m]
+		if !near(back, c.value, tolRel) {
+			t.Errorf("%s = %g reads back %g", c.m, c.value, back)
+		}
+		if (c.m != PeakToPeak) != hasWarning(res, "q* definition") {
+			t.Errorf("%s: definition warning %v", c.m, res.Warnings)
+		}
+		if m, err := ParseMeasure(c.m.String()); err != nil || m != c.m {
+			t.Errorf("ParseMeasure(%q) = %v, %v", c.m.String(), m, err)
+		}
+	}
+	if _, err := p.WithMeasure(PeakToPeakSuperadiabatic, 1, Reference{QMean: 0.05}); err == nil {
+		t.Error("the super-adiabatic measure without q_ad must be refused")
+	}
+}

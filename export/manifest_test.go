@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"cmbflux/flux/sh"
 )
 
 func TestAtomicFile(t *testing.T) {
@@ -151,6 +153,45 @@ func TestReadManifestErrors(t *testing.T) {
 		_, err := ReadManifest(strings.NewReader(tc.in), "m.yaml")
 		if err == nil || !strings.Contains(err.Error(), tc.want) || !errors.Is(err, ErrBadInput) {
 			t.Errorf("error %v, want %q", err, tc.want)
+		}
+	}
+}
+
+// The *File writers pick the format from the extension and write
+// atomically; an unknown extension is refused before anything is written.
+func TestWriteFilesByExtension(t *testing.T) {
+	dir := t.TempDir()
+	c := randomCoeffs(3, sh.Canonical, 4)
+	for _, name := range []string{"c.txt", "c.csv", "c.json"} {
+		p := filepath.Join(dir, name)
+		if err := WriteCoeffsFile(p, c, testMeta(), nil); err != nil {
+			t.Fatal(err)
+		}
+		tab, err := ReadCoeffsFile(p, nil)
+		if err != nil || !sameBits(tab.Coeffs.C, noNegZero(c.C)) {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	if err := WriteCoeffsFile(filepath.Join(dir, "c.nc"), c, nil, nil); err == nil {
+		t.Error("coefficients written as netCDF")
+	}
+	if err := WriteGridFile(filepath.Join(dir, "g.xyz"), testGrid(), nil); err == nil || !strings.Contains(err.Error(), "want .txt") {
+		t.Errorf("unknown extension: %v", err)
+	}
+	if err := WriteOutlinesFile(filepath.Join(dir, "o.geojson"), []Outline{{Rings: [][][2]float64{smallCircle(0, 0, 5, 50, true)}}}, nil); err != nil {
+		t.Fatal(err)
+	}
+	ents, _ := os.ReadDir(dir)
+	if len(ents) != 4 {
+		t.Errorf("%d files in the folder, want 4 (no temporary files left)", len(ents))
+	}
+	for _, name := range []string{"g.csv", "g.txt", "g.nc"} {
+		p := filepath.Join(dir, name)
+		if err := WriteGridFile(p, testGrid(), testMeta()); err != nil {
+			t.Fatal(err)
+		}
+		if tab, err := ReadGridFile(p); err != nil || !sameBits(tab.Grid.Values, testGrid().Values) {
+			t.Errorf("%s: %v", name, err)
 		}
 	}
 }

@@ -106,7 +106,8 @@ type Result struct {
 	// Amplitude is a in q = QMean (1 + a g), dimensionless per unit of g.
 	Amplitude float64
 	// QAd is the adiabatic flux in W/m^2 when HasAdiabatic.
-	QAd          float64
+	QAd float64
+	// HasAdiabatic reports whether an adiabatic reference was given.
 	HasAdiabatic bool
 	// KCore is the core conductivity in W/m/K (0 if not given).
 	KCore float64

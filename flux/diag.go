@@ -33,43 +33,57 @@ type Diagnostics struct {
 	MaxDeviationOverMean float64 `json:"max_deviation_over_mean"`
 	// FluxUnits names the unit of the flux entries, "mW/m^2".
 	FluxUnits string `json:"flux_units"`
-	// QMean, QMax, QMin: mean and extrema of the continuous field, mW/m^2.
+	// QMean is the mean heat flux, mW/m^2.
 	QMean float64 `json:"q_mean"`
-	QMax  float64 `json:"q_max"`
-	QMin  float64 `json:"q_min"`
-	// QMaxLonLat and QMinLonLat locate the extrema, degrees.
+	// QMax is the maximum of the continuous field, mW/m^2.
+	QMax float64 `json:"q_max"`
+	// QMin is the minimum of the continuous field, mW/m^2.
+	QMin float64 `json:"q_min"`
+	// QMaxLonLat locates the maximum, [lon, lat] in degrees.
 	QMaxLonLat [2]float64 `json:"q_max_lonlat"`
+	// QMinLonLat locates the minimum, [lon, lat] in degrees.
 	QMinLonLat [2]float64 `json:"q_min_lonlat"`
 	// HeatFlowTW is the CMB heat flow q_mean * 4 pi rc^2 in TW.
 	HeatFlowTW float64 `json:"heat_flow_tw"`
-	// QAd is the adiabatic flux in mW/m^2, AdiabaticHeatFlowTW in TW.
-	QAd                 *float64 `json:"q_ad,omitempty"`
+	// QAd is the adiabatic flux in mW/m^2.
+	QAd *float64 `json:"q_ad,omitempty"`
+	// AdiabaticHeatFlowTW is the adiabatic heat flow in TW.
 	AdiabaticHeatFlowTW *float64 `json:"adiabatic_heat_flow_tw,omitempty"`
 	// AreaFractionNegative is the fraction of the CMB where q < 0 (the
-	// core gains heat); AreaFractionSubadiabatic where q < q_ad.
-	AreaFractionNegative     float64  `json:"area_fraction_negative"`
+	// core gains heat).
+	AreaFractionNegative float64 `json:"area_fraction_negative"`
+	// AreaFractionSubadiabatic is the fraction of the CMB where q < q_ad
+	// (sub-adiabatic, thermally stratified).
 	AreaFractionSubadiabatic *float64 `json:"area_fraction_subadiabatic,omitempty"`
-	// LMax is the truncation degree, LMaxInput the input's degree.
-	LMax      int    `json:"lmax"`
-	LMaxInput int    `json:"lmax_input"`
-	Taper     string `json:"taper"`
+	// LMax is the truncation degree.
+	LMax int `json:"lmax"`
+	// LMaxInput is the degree of the input expansion.
+	LMaxInput int `json:"lmax_input"`
+	// Taper names the taper applied (PatternOptions.TaperName).
+	Taper string `json:"taper"`
 	// Degree2PowerFraction is the fraction of the power of the anomaly in
 	// degree 2.
 	Degree2PowerFraction float64 `json:"degree2_power_fraction"`
-	// SlowestLonLat is where the input dlnVs (all its degrees) is lowest;
-	// MinToSlowestDeg the angle from there to the flux minimum.
-	SlowestLonLat   [2]float64 `json:"slowest_lonlat"`
-	MinToSlowestDeg float64    `json:"min_to_slowest_deg"`
+	// SlowestLonLat is where the input dlnVs (all its degrees) is lowest,
+	// [lon, lat] in degrees.
+	SlowestLonLat [2]float64 `json:"slowest_lonlat"`
+	// MinToSlowestDeg is the angle in degrees from the slowest point of the
+	// input to the flux minimum.
+	MinToSlowestDeg float64 `json:"min_to_slowest_deg"`
 	// Amplitude is a in q = q_mean (1 + a g).
 	Amplitude float64 `json:"amplitude"`
-	// Physical mode only: mantle conductivity (W/m/K), boundary-layer
-	// thickness (km), dlnVs/dT (1/K), and the temperature anomaly of the
-	// mantle (K) where the flux is highest (cold, negative) and lowest
-	// (hot, positive).
-	Conductivity   float64 `json:"k_mantle,omitempty"`
-	ThicknessKm    float64 `json:"tbl_thickness_km,omitempty"`
-	DlnVsDT        float64 `json:"dlnvs_dt,omitempty"`
+	// Conductivity is the lowermost-mantle conductivity k in W/m/K
+	// (physical mode only).
+	Conductivity float64 `json:"k_mantle,omitempty"`
+	// ThicknessKm is the boundary-layer thickness h in km (physical mode).
+	ThicknessKm float64 `json:"tbl_thickness_km,omitempty"`
+	// DlnVsDT is dlnVs/dT in 1/K (physical mode).
+	DlnVsDT float64 `json:"dlnvs_dt,omitempty"`
+	// TemperatureMax is the mantle temperature anomaly in K where the flux
+	// is highest (cold, negative; physical mode).
 	TemperatureMax float64 `json:"dt_at_q_max_k,omitempty"`
+	// TemperatureMin is the mantle temperature anomaly in K where the flux
+	// is lowest (hot, positive; physical mode).
 	TemperatureMin float64 `json:"dt_at_q_min_k,omitempty"`
 }
 
@@ -190,7 +204,9 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 // with the region on the left (exterior rings counter-clockwise seen from
 // outside, holes clockwise); see package contour.
 type Outlines struct {
-	Negative     [][][2]float64 `json:"negative"`
+	// Negative bounds the regions where q < 0.
+	Negative [][][2]float64 `json:"negative"`
+	// Subadiabatic bounds the regions where q < q_ad.
 	Subadiabatic [][][2]float64 `json:"subadiabatic,omitempty"`
 }
 

@@ -13,8 +13,11 @@ import (
 // Weight * Y_lm^c (or Y_lm^s when Sin), canonical (orthonormal, no
 // Condon-Shortley phase), so that Y_lm^c = N_lm P_l^m(cos colat) cos(m lon).
 type Term struct {
-	L, M   int
-	Sin    bool
+	// L and M are the degree (1 or more) and order (0 to L).
+	L, M int
+	// Sin selects the sine harmonic (M > 0 only).
+	Sin bool
+	// Weight multiplies the harmonic.
 	Weight float64
 }
 

@@ -1,5 +1,10 @@
 package tomo
 
+import (
+	"fmt"
+	"math"
+)
+
 // Registration says how grid coordinates relate to the data: at grid nodes
 // (values sampled at the coordinates) or at cell centres (values are cell
 // averages and the coordinates are the centres of cells of equal size).
@@ -65,8 +70,8 @@ type Grid struct {
 	Warnings []string
 }
 
-// DLon returns the longitude spacing in degrees (360/NLon for the global
-// grids the readers accept).
+// DLon returns the longitude spacing in degrees,
+// (Lon[last]-Lon[0])/(NLon-1): 360/NLon for a global grid.
 func (g *Grid) DLon() float64 {
 	if len(g.Lon) < 2 {
 		return 360
@@ -85,6 +90,53 @@ func (g *Grid) DLat() float64 {
 // Index returns the position in Values of depth index k, latitude index j
 // and longitude index i: (k*NLat + j)*NLon + i.
 func (g *Grid) Index(k, j, i int) int { return (k*len(g.Lat)+j)*len(g.Lon) + i }
+
+// Check returns an error describing the first broken invariant of g, or
+// nil: at least one longitude and latitude, Lon ascending in [0, 360), Lat
+// ascending in [-90, 90], Depth (if any) ascending in [0, 6371] km, both
+// horizontal axes evenly spaced (each coordinate within 1e-3 of a step of
+// its place; coordinates stored in single precision fit), len(Values) =
+// NDepth*NLat*NLon, and Valid nil or as long as Values. SelectLayer checks
+// its grid with Check.
+func (g *Grid) Check() error {
+	nlon, nlat := len(g.Lon), len(g.Lat)
+	if nlon == 0 || nlat == 0 {
+		return fmt.Errorf("tomo: grid has %d longitudes and %d latitudes", nlon, nlat)
+	}
+	if len(g.Values) != g.NDepth()*nlat*nlon {
+		return fmt.Errorf("tomo: grid has %d values for %d x %d x %d points", len(g.Values), g.NDepth(), nlat, nlon)
+	}
+	if g.Valid != nil && len(g.Valid) != len(g.Values) {
+		return fmt.Errorf("tomo: grid has %d validity flags for %d values", len(g.Valid), len(g.Values))
+	}
+	even := func(name string, v []float64, lo, hi float64, hiOpen bool) error {
+		step := 0.0
+		if len(v) > 1 {
+			step = (v[len(v)-1] - v[0]) / float64(len(v)-1)
+		}
+		for i, x := range v {
+			if !(x >= lo && (x < hi || (!hiOpen && x == hi))) {
+				return fmt.Errorf("tomo: grid %s %g outside [%g, %g%s", name, x, lo, hi, map[bool]string{true: ")", false: "]"}[hiOpen])
+			}
+			if i > 0 && !(x > v[i-1]) {
+				return fmt.Errorf("tomo: grid %s not ascending at %g", name, x)
+			}
+		}
+		for i, x := range v {
+			if name != "depth" && math.Abs(x-v[0]-float64(i)*step) > 1e-3*step {
+				return fmt.Errorf("tomo: grid %s not evenly spaced at %g", name, x)
+			}
+		}
+		return nil
+	}
+	if err := even("longitude", g.Lon, 0, 360, true); err != nil {
+		return err
+	}
+	if err := even("latitude", g.Lat, -90, 90, false); err != nil {
+		return err
+	}
+	return even("depth", g.Depth, 0, EarthRadiusKm, false)
+}
 
 // NLon returns len(g.Lon).
 func (g *Grid) NLon() int { return len(g.Lon) }

@@ -78,11 +78,14 @@ const nearWarnKm = 50
 //   - otherwise: the deepest level.
 //
 // A grid without a depth axis gives its only level; asking it for a depth
-// or range adds a warning. An error is returned when no level falls in the
-// range, and for the errors of Normalize.
+// or range adds a warning. An error is returned for a grid that fails
+// Check, when no level falls in the range, and for the errors of Normalize.
 func SelectLayer(g *Grid, opts LayerOptions) (*Layer, error) {
 	if opts.Bottom < opts.Top || opts.Depth < 0 {
 		return nil, fmt.Errorf("tomo: depth range %g..%g km (depth %g km) is not valid: need 0 <= top < bottom", opts.Top, opts.Bottom, opts.Depth)
+	}
+	if err := g.Check(); err != nil {
+		return nil, err
 	}
 	ng, rep, err := Normalize(g, opts.Units)
 	if err != nil {

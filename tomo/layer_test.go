@@ -188,3 +188,34 @@ func TestReadTextLineEndings(t *testing.T) {
 		checkField(t, g, func(l float64) float64 { return l })
 	}
 }
+
+func TestGridCheck(t *testing.T) {
+	good := func() *Grid { return depthGrid([]float64{2800, 2891}, []float64{1, 2}) }
+	if err := good().Check(); err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		name   string
+		break_ func(g *Grid)
+		want   string
+	}{
+		{"values", func(g *Grid) { g.Values = g.Values[1:] }, "15 values for 2 x 2 x 4 points"},
+		{"valid", func(g *Grid) { g.Valid = make([]bool, 3) }, "3 validity flags"},
+		{"lon range", func(g *Grid) { g.Lon[3] = 360 }, "longitude 360 outside [0, 360)"},
+		{"lon order", func(g *Grid) { g.Lon[1], g.Lon[2] = g.Lon[2], g.Lon[1] }, "not ascending"},
+		{"lon spacing", func(g *Grid) { g.Lon[1] = 100 }, "longitude not evenly spaced at 100"},
+		{"lat range", func(g *Grid) { g.Lat[0] = -95 }, "latitude -95 outside [-90, 90]"},
+		{"depth", func(g *Grid) { g.Depth[1] = 2700 }, "depth not ascending"},
+	}
+	for _, tc := range tests {
+		g := good()
+		tc.break_(g)
+		err := g.Check()
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: %v, want %q", tc.name, err, tc.want)
+		}
+		if _, err := SelectLayer(g, LayerOptions{}); err == nil {
+			t.Errorf("%s: SelectLayer accepted a broken grid", tc.name)
+		}
+	}
+}

@@ -110,7 +110,7 @@
 // # Manifests
 //
 // Stage.WriteManifest writes manifest.yaml into a staged folder: format
-// (cmbflux-manifest/1), cmbflux_version, created (optional time, the only
+// (cmbflux-manifest/1), cmbflux_version, platform (Go version, GOOS/GOARCH), created (optional time, the only
 // one in a build), command, inputs (name, sha256, size, format),
 // parameters, diagnostics, and files (name, size, sha256, sorted by name).
 // Verify checks a folder against it.

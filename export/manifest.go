@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"sort"
 	"strings"
 
@@ -30,6 +31,11 @@ type Manifest struct {
 	Format string `yaml:"format"`
 	// Version is the cmbflux version that made the build.
 	Version string `yaml:"cmbflux_version"`
+	// Platform is the Go version and GOOS/GOARCH of the build, filled by
+	// Encode when empty: bit-for-bit rebuilds need the same platform, since
+	// the Go compiler may fuse multiply-adds on some architectures (arm64,
+	// ppc64le, s390x), which changes the last bits of results.
+	Platform string `yaml:"platform"`
 	// Created is an optional time stamp (RFC 3339), for people only: it
 	// plays no part in Verify.
 	Created string `yaml:"created,omitempty"`
@@ -101,6 +107,9 @@ func (m *Manifest) AddFile(dir, name string) error {
 func (m *Manifest) Encode(w io.Writer) error {
 	c := *m
 	c.Format = manifestFormat
+	if c.Platform == "" {
+		c.Platform = runtime.Version() + " " + runtime.GOOS + "/" + runtime.GOARCH
+	}
 	c.Files = append([]ManifestFile(nil), m.Files...)
 	sort.Slice(c.Files, func(i, j int) bool { return c.Files[i].Name < c.Files[j].Name })
 	if c.Inputs == nil {

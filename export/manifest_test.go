@@ -80,7 +80,7 @@ func TestStageCommitAbort(t *testing.T) {
 	if len(got.Files) != 2 || got.Files[0].Name != "coefficients.txt" || got.Files[1].Name != "maps/flux.csv" || got.Files[0].Size != 8 {
 		t.Errorf("files %+v", got.Files)
 	}
-	if got.Params["qstar"] != "0.8" || got.Diagnostics["q_min"] != 12.5 {
+	if got.Params["qstar"] != "0.8" || got.Diagnostics["q_min"] != 12.5 || !strings.HasPrefix(got.Platform, "go") {
 		t.Errorf("manifest read back as %+v", got)
 	}
 	// A second build replaces the first; an aborted one leaves it alone.

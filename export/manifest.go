@@ -33,8 +33,8 @@ type Manifest struct {
 	Version string `yaml:"cmbflux_version"`
 	// Platform is the Go version and GOOS/GOARCH of the build, filled by
 	// Encode when empty: bit-for-bit rebuilds need the same platform, since
-	// the Go compiler may fuse multiply-adds on some architectures (arm64,
-	// ppc64le, s390x), which changes the last bits of results.
+	// the Go specification lets compilers fuse multiply-adds, which gc does
+	// on some architectures (arm64, ppc64le, s390x), changing last bits.
 	Platform string `yaml:"platform"`
 	// Created is an optional time stamp (RFC 3339), for people only: it
 	// plays no part in Verify.

@@ -89,7 +89,7 @@
 // standard_name if given, comment (the sign) and cell_methods = "lat: point
 // lon: point" (point samples, CF-1.8 section 7.3); global attributes
 // Conventions = "CF-1.8", title, source and history (without a time), and
-// cmbflux_format, cmbflux_grid, cmbflux_reference_radius_km, cmbflux_sign,
+// cmbflux_format, cmbflux_version, cmbflux_grid, cmbflux_reference_radius_km, cmbflux_sign,
 // cmbflux_inputs and cmbflux_parameters (one "key = value" per line).
 // Units should be UDUNITS strings (such as mW/m^2) so that CF tools read
 // them. ReadGrid reads all three back exactly.

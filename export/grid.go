@@ -229,14 +229,19 @@ func GridNetCDF(g *Grid, meta *Meta) (*netcdf.File, error) {
 	if version == "" {
 		version = "unknown version"
 	}
+	tool := version
+	if !strings.HasPrefix(tool, "cmbflux") {
+		tool = "cmbflux " + version
+	}
 	title := meta.Quantity
 	if title == "" {
 		title = g.name()
 	}
 	f.SetAttr("Conventions", "CF-1.8")
 	f.SetAttr("title", title)
-	f.SetAttr("source", "cmbflux "+version)
-	f.SetAttr("history", "written by cmbflux "+version+" (no time recorded: the build manifest holds it)")
+	f.SetAttr("source", tool)
+	f.SetAttr("history", "written by "+tool+" (no time recorded: the build manifest holds it)")
+	f.SetAttr("cmbflux_version", meta.Version)
 	f.SetAttr("cmbflux_format", "cmbflux-grid/"+strconv.Itoa(FormatVersion))
 	f.SetAttr("cmbflux_grid", kind)
 	f.SetAttr("cmbflux_reference_radius_km", meta.radiusKm())

@@ -269,7 +269,7 @@ func readGridNetCDF(data []byte, name string) (*GridTable, error) {
 			t.Meta.RadiusKm = v[0]
 		}
 	}
-	t.Meta.Version = strings.TrimPrefix(text(f.Attr("source")), "cmbflux ")
+	t.Meta.Version = text(f.Attr("cmbflux_version"))
 	for _, ln := range strings.Split(strings.TrimSpace(text(f.Attr("cmbflux_inputs"))), "\n") {
 		if sum, file, ok := strings.Cut(ln, " "); ok {
 			t.Meta.Inputs = append(t.Meta.Inputs, Input{Name: file, SHA256: sum})

@@ -95,15 +95,22 @@ func demoBuild() *Grid {
 		g.Lat[j] = -89 + 2*float64(j)
 	}
 	g.Values = make([]float64, len(g.Depth)*len(g.Lat)*len(g.Lon))
+	// The horizontal pattern is the same at every level; evaluate it once.
+	plane := len(g.Lat) * len(g.Lon)
+	largeAt, smallAt := make([]float64, plane), make([]float64, plane)
+	for j, lat := range g.Lat {
+		for i, lon := range g.Lon {
+			largeAt[j*len(g.Lon)+i] = demoLarge(lon, lat)
+			smallAt[j*len(g.Lon)+i] = demoSmall(lon, lat)
+		}
+	}
 	for k, d := range g.Depth {
 		t := (d - DemoDepths[0]) / (CMBDepthKm - DemoDepths[0])
 		large := 0.5 + 0.5*math.Pow(t, 1.5)
 		small := 0.7 + 0.3*t
-		for j, lat := range g.Lat {
-			for i, lon := range g.Lon {
-				v := large*demoLarge(lon, lat) + small*demoSmall(lon, lat)
-				g.Values[g.Index(k, j, i)] = math.Round(v*1000) / 1000
-			}
+		for s := range plane {
+			v := large*largeAt[s] + small*smallAt[s]
+			g.Values[k*plane+s] = math.Round(v*1000) / 1000
 		}
 	}
 	return g

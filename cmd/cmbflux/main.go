@@ -1,18 +1,22 @@
 // Command cmbflux turns seismic tomography of the lowermost mantle into
 // heat-flux boundary conditions at the core-mantle boundary for geodynamo
-// simulations, and runs parameter sweeps of them.
+// simulations, runs parameter sweeps of them and compares models.
 //
-// Usage:
+// A session on the embedded demo scenario (a test runs these lines in order):
 //
-//	cmbflux build   --demo --qstar 2 --qmean 80 --out bc     one boundary condition
-//	cmbflux sweep   sweep.yaml --out runs                   a parameter sweep
-//	cmbflux inspect FILE                                    what a file holds
-//	cmbflux convert IN --norm schmidt --out OUT             change a file's convention
-//	cmbflux plot    FILE --out map.png                      a map or spectrum
-//	cmbflux demo    --out demo-out                          the whole job on the demo scenario
+//	cmbflux demo --out demo-out
+//	cmbflux build --demo --qstar 2 --qmean 80 --qad 60 --lmax 12 --out bc
+//	cmbflux inspect bc/coefficients.txt
+//	cmbflux convert bc/coefficients.txt --norm schmidt --out schmidt.txt
+//	cmbflux plot bc/coefficients.txt --out map.png
+//	cmbflux sweep demo-out/sweep.yaml --out runs
+//	cmbflux sweep demo-out/sweep.yaml --out runs --resume
+//	cmbflux build --demo --quantity dvs --rotate 45 --formats nc --out turned
+//	cmbflux compare demo turned/field.nc
 //
-// Every command takes --help. README.md documents each one with examples
-// that a test runs.
+// Every command takes --help, which ends with a worked example; README.md
+// documents them all. Check the convention stated in every coefficient file
+// against the documentation of the simulation code that will read it.
 package main
 
 import (

@@ -133,3 +133,33 @@ func TestShellWords(t *testing.T) {
 		t.Errorf("shellWords = %q, %v", got, err)
 	}
 }
+
+// TestPackageDocSession runs the command lines of the package comment.
+func TestPackageDocSession(t *testing.T) {
+	src, err := os.ReadFile("main.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var cmds [][]string
+	for _, line := range strings.Split(string(src), "\n") {
+		if line == "package main" {
+			break
+		}
+		if c, ok := strings.CutPrefix(line, "//\tcmbflux "); ok {
+			w, err := shellWords(c)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cmds = append(cmds, w)
+		}
+	}
+	if len(cmds) < 5 {
+		t.Fatalf("found %d command lines in the package comment", len(cmds))
+	}
+	t.Chdir(t.TempDir())
+	for _, args := range cmds {
+		if _, errs, code := cli(args, ""); code != 0 {
+			t.Fatalf("cmbflux %s: exit %d\n%s", strings.Join(args, " "), code, errs)
+		}
+	}
+}

@@ -143,19 +143,22 @@ func TestSweepSurvivesSIGKILL(t *testing.T) {
 	rng := rand.New(rand.NewSource(1))
 	target := filepath.Join(dir, "killed")
 	kills := 0
-	for attempt := 0; attempt < 25; attempt++ {
+	for attempt := 0; attempt < 60 && kills < 8; attempt++ {
 		cmd := runBin(target, "--resume")
 		if err := cmd.Start(); err != nil {
 			t.Fatal(err)
 		}
 		done := make(chan error, 1)
 		go func() { done <- cmd.Wait() }()
-		delay := time.Duration(rng.Int63n(int64(full)*2/3 + 1))
+		delay := time.Duration(rng.Int63n(int64(full)/2 + 1))
 		select {
 		case err := <-done:
 			if err != nil {
 				t.Fatalf("resumed sweep failed: %v", err)
 			}
+			// Finished before the kill: start over so that enough kills land.
+			os.RemoveAll(target)
+			continue
 		case <-time.After(delay):
 			cmd.Process.Signal(syscall.SIGKILL)
 			<-done
@@ -170,18 +173,46 @@ func TestSweepSurvivesSIGKILL(t *testing.T) {
 				}
 			}
 		}
-		if _, err := os.Stat(filepath.Join(target, "summary.csv")); err == nil {
-			break
-		}
 	}
-	if kills == 0 {
-		t.Log("no kill landed before the sweep finished")
+	if kills < 8 {
+		t.Fatalf("only %d kills landed during a sweep", kills)
 	}
 	if out, err := runBin(target, "--resume").CombinedOutput(); err != nil {
 		t.Fatalf("final resume: %v\n%s", err, out)
 	}
 	sameTree(t, want, tree(t, target))
 	t.Logf("%d kills; uninterrupted sweep %v", kills, full)
+
+	// SIGINT and SIGTERM stop the sweep cleanly: status 1, a message that
+	// says how to resume, no temporary folders left, and resuming completes
+	// the same files.
+	for _, sig := range []os.Signal{os.Interrupt, syscall.SIGTERM} {
+		target := filepath.Join(dir, fmt.Sprint("signal-", sig))
+		cmd := runBin(target)
+		var stderr bytes.Buffer
+		cmd.Stderr = &stderr
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(full / 3)
+		cmd.Process.Signal(sig)
+		err := cmd.Wait()
+		if err != nil {
+			if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 1 || !strings.Contains(stderr.String(), "--resume") {
+				t.Errorf("after %v: %v, stderr %q", sig, err, stderr.String())
+			}
+			ents, _ := os.ReadDir(target)
+			for _, e := range ents {
+				if outdir.IsTemp(e.Name()) {
+					t.Errorf("after %v: temporary %s left behind", sig, e.Name())
+				}
+			}
+		}
+		if out, err := runBin(target, "--resume").CombinedOutput(); err != nil {
+			t.Fatalf("resume after %v: %v\n%s", sig, err, out)
+		}
+		sameTree(t, want, tree(t, target))
+	}
 }
 
 // BenchmarkSweep runs sweeps of the demo scenario at lmax 16 that vary q*;

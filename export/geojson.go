@@ -491,13 +491,29 @@ func WriteOutlines(w io.Writer, outlines []Outline, meta *Meta) error {
 		}
 		col.Features = append(col.Features, f)
 	}
+	// One line for the collection's members and one per feature: compact
+	// coordinates, yet a file that line-oriented tools can handle.
 	var b bytes.Buffer
-	enc := json.NewEncoder(&b)
-	enc.SetIndent("", " ")
-	if err := enc.Encode(&col); err != nil {
+	head, err := json.Marshal(col.Metadata)
+	if err != nil {
 		return fmt.Errorf("export: %v", err)
 	}
-	_, err := w.Write(b.Bytes())
+	b.WriteString(`{"type":"FeatureCollection","cmbflux":`)
+	b.Write(head)
+	b.WriteString(`,"features":[`)
+	for i := range col.Features {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteByte('\n')
+		fj, err := json.Marshal(&col.Features[i])
+		if err != nil {
+			return fmt.Errorf("export: feature %d: %v", i, err)
+		}
+		b.Write(fj)
+	}
+	b.WriteString("\n]}\n")
+	_, err = w.Write(b.Bytes())
 	return err
 }
 

@@ -29,6 +29,9 @@ type Layer struct {
 	// Mean is the area-weighted mean dlnVs (fraction) over the valid
 	// points. It is reported, never removed.
 	Mean float64
+	// Min and Max are the extreme dlnVs (fractions) over the valid points
+	// of the layer (Units.Min and Units.Max are over the whole grid).
+	Min, Max float64
 	// Units reports how the values were converted to dlnVs.
 	Units  *UnitReport
 	Source Provenance
@@ -195,6 +198,12 @@ func SelectLayer(g *Grid, opts LayerOptions) (*Layer, error) {
 		return nil, &InputError{File: g.Source.Path, Var: g.Name, Err: fmt.Errorf("the selected layer (%s) has no valid points", l.Description)}
 	}
 	l.Mean = m
+	l.Min, l.Max = math.Inf(1), math.Inf(-1)
+	for s, v := range l.Values {
+		if l.Valid == nil || l.Valid[s] {
+			l.Min, l.Max = math.Min(l.Min, v), math.Max(l.Max, v)
+		}
+	}
 	if l.Valid != nil {
 		all := true
 		for _, v := range l.Valid {

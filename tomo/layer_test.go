@@ -85,6 +85,9 @@ func TestShellWeights(t *testing.T) {
 	if math.Abs(l.Values[3]-want) > unitTol {
 		t.Errorf("average %g, want %g", l.Values[3], want)
 	}
+	if l.Min != l.Values[0] || l.Max != l.Values[0] || l.Units.Max != 0.04 {
+		t.Errorf("layer range %g..%g (grid max %g), want %g..%g (grid max 0.04)", l.Min, l.Max, l.Units.Max, l.Values[0], l.Values[0])
+	}
 	if !strings.Contains(l.Description, "2700 km (weight") || !containsAny(l.Warnings, "span 2700..2891 km, less than the requested 2650..2891") {
 		t.Errorf("Description %q Warnings %q", l.Description, l.Warnings)
 	}

@@ -45,11 +45,13 @@ func (e *InputError) Unwrap() []error { return []error{e.Err, ErrBadInput} }
 type ReadOptions struct {
 	// Format is "" (detect from the content), "text", "csv" or "netcdf".
 	Format string
-	// Var names the value column (CSV) or variable (netCDF); "" picks the
-	// only candidate or fails listing the candidates.
+	// Var names the value column (CSV, or text with a "# columns:" line)
+	// or variable (netCDF); "" picks the only candidate or fails listing
+	// the candidates.
 	Var string
-	// LonName, LatName and DepthName name the coordinate columns (CSV) or
-	// variables (netCDF) when automatic recognition is not wanted.
+	// LonName, LatName and DepthName name the coordinate columns (CSV,
+	// or text with a "# columns:" line) or variables (netCDF) when
+	// automatic recognition is not wanted.
 	LonName, LatName, DepthName string
 	// Vertical says what the third coordinate is: "depth" (km below the
 	// surface) or "radius" (km from the Earth's centre, converted to depth

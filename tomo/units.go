@@ -217,9 +217,9 @@ func parseUnits(s string) (string, bool) {
 		return UnitPercent, true
 	case "fraction", "1", "dimensionless", "dlnvs", "ratio", "fractional":
 		return UnitFraction, true
-	case "km/s", "km s-1", "kms-1", "km per s", "km/sec":
+	case "km/s", "km s-1", "kms-1", "km per s", "km/sec", "km per second", "kilometres per second", "kilometers per second":
 		return UnitKmPerS, true
-	case "m/s", "m s-1", "ms-1", "m per s", "m/sec":
+	case "m/s", "m s-1", "ms-1", "m per s", "m/sec", "m per second", "metres per second", "meters per second":
 		return UnitMPerS, true
 	}
 	return "", false

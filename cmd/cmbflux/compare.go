@@ -93,6 +93,7 @@ type compareOpts struct {
 	voteFraction, step       string
 	trials, clusters         int
 	profiles, force, quiet   bool
+	json                     bool
 }
 
 // cmpModel is one model of a comparison as read.
@@ -183,6 +184,7 @@ func runCompare(stdout, stderr io.Writer, args []string) error {
 	p.stringVar(&o.consensus, "consensus", "KIND", "mean or votes: build a boundary condition from the consensus into DIR/consensus/")
 	p.boolVar(&o.force, "force", "replace a non-empty output folder")
 	p.boolVar(&o.quiet, "quiet", "print nothing but warnings and errors")
+	p.boolVar(&o.json, "json", "print summary.json's content instead of the table")
 	pos, err := p.parse(args)
 	if err != nil {
 		return err
@@ -360,10 +362,7 @@ func runCompare(stdout, stderr io.Writer, args []string) error {
 		for _, w := range sum.Warnings {
 			fmt.Fprintln(stderr, "cmbflux: warning: "+w)
 		}
-		if !o.quiet {
-			cmpPrint(stdout, "", sum, models)
-		}
-		return nil
+		return cmpOutput(stdout, "", sum, models, o)
 	}
 
 	st, err := outdir.New(out, o.force)
@@ -438,6 +437,19 @@ func runCompare(stdout, stderr io.Writer, args []string) error {
 	}
 	for _, w := range sum.Warnings {
 		fmt.Fprintln(stderr, "cmbflux: warning: "+w)
+	}
+	return cmpOutput(stdout, out, sum, models, o)
+}
+
+// cmpOutput prints the table, or the summary as JSON with --json.
+func cmpOutput(stdout io.Writer, out string, sum *cmpSummary, models []*cmpModel, o compareOpts) error {
+	if o.json {
+		js, err := marshalJSON(sum)
+		if err != nil {
+			return err
+		}
+		_, err = stdout.Write(js)
+		return err
 	}
 	if !o.quiet {
 		cmpPrint(stdout, out, sum, models)
@@ -924,8 +936,8 @@ func cmpFigures(res *compare.Result, n float64, votes []float64, maj int) []name
 		{"correlation.png", &figure.Correlation{Title: fmt.Sprintf("degree correlation of dVs, degrees 1-%d", res.LMax), Series: series, Thresholds: thr}},
 		{"spectra.png", &figure.Spectrum{Title: "degree power of dVs", YLabel: "mean square per degree (%²)", Series: spec}},
 		{"models.png", &figure.Panel{Title: "dVs of the models and their mean at the comparison depth", Subtitle: fmt.Sprintf("degrees 0-%d; outlines: slow regions", res.LMax),
-			Maps: maps, Cols: cols, Center: 0, CenterLabel: "0", Label: "dVs", Units: "%"}},
-		{"spread.png", &figure.Map{Title: "spread of dVs across the models (standard deviation)", Grid: fg(scaled(res.Std, 100)), Center: 0, CenterLabel: "0",
+			Maps: maps, Cols: cols, Center: 0, CenterLabel: "zero", Label: "dVs", Units: "%"}},
+		{"spread.png", &figure.Map{Title: "spread of dVs across the models (standard deviation)", Grid: fg(scaled(res.Std, 100)), Center: 0, CenterLabel: "zero",
 			Label: "spread of dVs", Units: "%", Outlines: []figure.Outline{meanOutline}}},
 		{"votes.png", &figure.Map{Title: fmt.Sprintf("votes: models placing the point in their slowest %g of the area", res.VoteFraction), Grid: fg(votes),
 			Center: n / 2, CenterLabel: "half the models", HalfRange: n / 2, Label: "votes", Units: "models", NoExtrema: true,

@@ -321,6 +321,13 @@ func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) [
 	if sp.Norm != "orthonormal" || sp.CondonShortley || sp.Form != "real" {
 		w = append(w, fmt.Sprintf("non-default convention: coefficients are written %s, %s form; check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
 	}
+	if f.res != nil && sp.Quantity != "flux" && sp.Quantity != "dtdr" {
+		extra := ""
+		if s.QStarSuperadiabatic != nil {
+			extra = fmt.Sprintf("; over the mean super-adiabatic flux it is (q_max - q_min)/(q_mean - q_ad) = %.4g", *s.QStarSuperadiabatic)
+		}
+		w = append(w, fmt.Sprintf("q* of another field: q* = %.4g is (q_max - q_min)/q_mean of the total heat flux, not of the %s written%s; make sure your simulation's q* is defined the same way", s.QStar, sp.Quantity, extra))
+	}
 	if sp.Quantity == "dtdr" {
 		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k_core with k_core = %g W/m/K, in K/km, negative where heat leaves the core; check the sign and units your code expects", sp.CoreConductivity))
 	}

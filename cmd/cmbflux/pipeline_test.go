@@ -266,3 +266,22 @@ func mustSpec(t *testing.T, kv ...string) *config.Spec {
 	}
 	return sp
 }
+
+func TestRotateMovesExtremaEast(t *testing.T) {
+	t.Chdir(t.TempDir())
+	mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--lmax", "8", "--out", "a")
+	mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--lmax", "8", "--rotate", "90", "--out", "b")
+	a, b := loadSummary(t, "a"), loadSummary(t, "b")
+	// A rotation about the pole by 90 degrees east moves every feature 90
+	// degrees east and keeps its latitude (references sheet, rotation
+	// invariants).
+	for _, p := range [][2][2]float64{{a.QMaxLonLat, b.QMaxLonLat}, {a.QMinLonLat, b.QMinLonLat}} {
+		dlon := math.Mod(p[1][0]-p[0][0]+360, 360)
+		if math.Abs(dlon-90) > 0.01 || math.Abs(p[1][1]-p[0][1]) > 0.01 {
+			t.Errorf("extremum moved from %v to %v, want 90 degrees east", p[0], p[1])
+		}
+	}
+	if math.Abs(*a.QMax-*b.QMax) > 1e-6 || math.Abs(a.QStar-b.QStar) > 1e-12 {
+		t.Errorf("rotation changed the values: %g vs %g", *a.QMax, *b.QMax)
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"io/fs"
+	"math"
 	"math/rand"
 	"os"
 	"os/exec"
@@ -238,5 +239,33 @@ func BenchmarkSweep(b *testing.B) {
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/point")
 		})
+	}
+}
+
+func TestSweepOverInputFiles(t *testing.T) {
+	t.Chdir(t.TempDir())
+	writeCosGrid(t, "models/a.txt", 1)
+	writeCosGrid(t, "models/b.txt", 2)
+	writeFile(t, "study/sweep.yaml", "base: {qstar: 1, qmean: 80, lmax: 4}\nvary:\n  input: [../models/a.txt, ../models/b.txt, ../models/missing.txt]\n  rotate: [0, 90]\nout: runs\n")
+	_, errs, code := cli([]string{"sweep", "study/sweep.yaml", "--quiet"}, "")
+	// The missing model fails its two runs (bad input: status 2); the others
+	// are complete, and the summary waits for the missing ones.
+	if code != 2 || !strings.Contains(errs, "missing.txt") || !strings.Contains(errs, "2 runs failed") {
+		t.Errorf("exit %d, stderr %q", code, errs)
+	}
+	for _, name := range []string{"0000_input=a_rotate=0", "0003_input=b_rotate=90"} {
+		if err := verifyFolder(filepath.Join("study", "runs", name)); err != nil {
+			t.Errorf("run %s: %v", name, err)
+		}
+	}
+	if _, err := os.Stat("study/runs/summary.csv"); err == nil {
+		t.Error("summary.csv written although runs failed")
+	}
+	// Turning a pattern by 90 degrees moves its extrema by 90 degrees of
+	// longitude; a pattern symmetric about the axis has none to move, so
+	// check that q* and the extreme values are unchanged instead.
+	a, b := loadSummary(t, "study/runs/0000_input=a_rotate=0"), loadSummary(t, "study/runs/0001_input=a_rotate=90")
+	if math.Abs(*a.QMax-*b.QMax) > 1e-9 || math.Abs(*a.QMin-*b.QMin) > 1e-9 {
+		t.Errorf("rotation about the axis changed an axisymmetric pattern: %g %g vs %g %g", *a.QMax, *a.QMin, *b.QMax, *b.QMin)
 	}
 }

@@ -283,9 +283,14 @@ func hermite(f0, f1, d0, d1, t float64) (p, dp float64) {
 // hermiteRoot returns t in [lo, hi] where the cubic Hermite interpolant is
 // zero, given values of opposite sign (or zero) at lo and hi: safeguarded
 // Newton from the linear estimate.
-func hermiteRoot(f0, f1, d0, d1, lo, hi float64) float64 {
-	plo, _ := hermite(f0, f1, d0, d1, lo)
-	phi, _ := hermite(f0, f1, d0, d1, hi)
+func hermiteRoot(f0, f1, d0, d1, lo, hi, tol float64) float64 {
+	plo, phi := f0, f1
+	if lo != 0 {
+		plo, _ = hermite(f0, f1, d0, d1, lo)
+	}
+	if hi != 1 {
+		phi, _ = hermite(f0, f1, d0, d1, hi)
+	}
 	up := phi > plo
 	t := lo + (hi-lo)*plo/(plo-phi)
 	if !(t >= lo && t <= hi) {
@@ -305,7 +310,7 @@ func hermiteRoot(f0, f1, d0, d1, lo, hi float64) float64 {
 		if !(nt >= lo && nt <= hi) {
 			nt = 0.5 * (lo + hi)
 		}
-		if math.Abs(nt-t) < 1e-12 {
+		if math.Abs(nt-t) < tol {
 			return nt
 		}
 		t = nt
@@ -319,11 +324,11 @@ func hermiteRoot(f0, f1, d0, d1, lo, hi float64) float64 {
 // the ends are on opposite sides, and two when both ends are on one side but
 // the cubic dips across between them (a thin band or small region between
 // grid nodes). herm false means linear interpolation.
-func edgeRoots(f0, f1, d0, d1 float64, herm bool) (n int, t [2]float64, split float64) {
+func edgeRoots(f0, f1, d0, d1 float64, herm bool, tol float64) (n int, t [2]float64, split float64) {
 	b0, b1 := f0 < 0, f1 < 0
 	if b0 != b1 {
 		if herm {
-			return 1, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, 1)}, 1
+			return 1, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, 1, tol)}, 1
 		}
 		return 1, [2]float64{f0 / (f0 - f1)}, 1
 	}
@@ -358,7 +363,7 @@ func edgeRoots(f0, f1, d0, d1 float64, herm bool) (n int, t [2]float64, split fl
 			continue
 		}
 		if p, _ := hermite(f0, f1, d0, d1, tc); (p < 0) != b0 {
-			return 2, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, tc), hermiteRoot(f0, f1, d0, d1, tc, 1)}, tc
+			return 2, [2]float64{hermiteRoot(f0, f1, d0, d1, 0, tc, tol), hermiteRoot(f0, f1, d0, d1, tc, 1, tol)}, tc
 		}
 	}
 	return 0, t, 0
@@ -401,6 +406,15 @@ func exactCut(at func(t float64) (f, df float64), n int, ts [2]float64, split fl
 		ts[0], ts[1] = exactRoot(at, ts[0], 0, split), exactRoot(at, ts[1], split, 1)
 	}
 	return n, ts
+}
+
+// rootTol is the tolerance in edge parameter of the interpolant's roots:
+// loose when Lines refines them, to rounding otherwise.
+func (s *Surface) rootTol() float64 {
+	if s.lines != nil {
+		return 1e-5 // one exact Newton step then leaves about 1e-10
+	}
+	return 1e-12
 }
 
 // meridianAt returns the crossing at parameter t on the edge of column j
@@ -452,7 +466,7 @@ func (s *Surface) meridianCut(i, j int, c float64) edgeCut {
 		d0, d1 = s.dp[k0]*dl, s.dp[k1]*dl
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	n, ts, split := edgeRoots(f0, f1, d0, d1, s.herm[i])
+	n, ts, split := edgeRoots(f0, f1, d0, d1, s.herm[i], s.rootTol())
 	e.n = n
 	if s.lines != nil && n > 0 {
 		dl := s.lat[i+1] - s.lat[i]
@@ -479,7 +493,7 @@ func (s *Surface) parallelCut(i, j int, c float64) edgeCut {
 		d0, d1 = s.dv[k0]*s.dlon, s.dv[k1]*s.dlon
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	n, ts, split := edgeRoots(f0, f1, d0, d1, herm)
+	n, ts, split := edgeRoots(f0, f1, d0, d1, herm, s.rootTol())
 	e.n = n
 	if s.lines != nil && herm && n > 0 && s.src[i] >= 0 {
 		r := s.src[i]

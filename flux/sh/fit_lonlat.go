@@ -5,6 +5,10 @@ import (
 	"math"
 )
 
+// maxRingLen bounds the number of longitudes of a full ring built from a
+// table (360/step), against absurd steps in input files.
+const maxRingLen = 1 << 20
+
 // LonLatLayout describes how the samples of a longitude-latitude table
 // (values[j*len(lon) + i] at latitude lat[j], longitude lon[i], degrees)
 // map onto a Grid of full rings: see NewLonLatLayout.
@@ -53,11 +57,14 @@ func NewLonLatLayout(lat, lon []float64) (*LonLatLayout, error) {
 	}
 	const tol = 1e-9 // degrees
 	for i := 2; i < nlon; i++ {
-		if math.Abs(lon[i]-lon[i-1]-step) > tol*math.Max(1, math.Abs(lon[i])) {
+		if !(math.Abs(lon[i]-lon[i-1]-step) <= tol*math.Max(1, math.Abs(lon[i]))) {
 			return nil, fmt.Errorf("sh: longitudes are not equally spaced at index %d (step %v, expected %v); use FitPoints", i, lon[i]-lon[i-1], step)
 		}
 	}
 	full := 360 / step
+	if !(full <= maxRingLen) {
+		return nil, fmt.Errorf("sh: longitude step %v degrees is finer than 360/%d; resample the table", step, maxRingLen)
+	}
 	nfull := int(math.Round(full))
 	if math.Abs(full-float64(nfull)) > 1e-9*full || nfull < 2 {
 		return nil, fmt.Errorf("sh: longitude step %v degrees does not divide 360; use FitPoints", step)

@@ -81,3 +81,47 @@ func TestFitLonLat(t *testing.T) {
 		})
 	}
 }
+
+// FuzzLonLatLayout feeds arbitrary axes (decoded from bytes) to the layout:
+// it must either return an error or a layout whose indices are a one-to-one
+// map into the grid (every grid point used at most once).
+func FuzzLonLatLayout(f *testing.F) {
+	f.Add(-90.0, 2.0, uint8(91), 0.0, 2.0, uint8(181))
+	f.Add(89.0, -2.0, uint8(90), -180.0, 2.0, uint8(91))
+	f.Add(0.0, 1.0, uint8(1), 0.0, 7.0, uint8(10))
+	f.Fuzz(func(t *testing.T, lat0, dlat float64, nlat uint8, lon0, dlon float64, nlon uint8) {
+		lat := degrees(lat0, dlat, int(nlat))
+		lon := degrees(lon0, dlon, int(nlon))
+		ly, err := NewLonLatLayout(lat, lon)
+		if err != nil {
+			return
+		}
+		if len(ly.Index) != len(lat)*len(lon) || ly.Grid.NLat() != len(lat) {
+			t.Fatalf("layout sizes %d, %d for %d x %d", len(ly.Index), ly.Grid.NLat(), len(lat), len(lon))
+		}
+		seen := make(map[int]bool)
+		for _, k := range ly.Index {
+			if k < 0 {
+				continue
+			}
+			if k >= ly.Grid.Len() || seen[k] {
+				t.Fatalf("grid index %d out of range or repeated", k)
+			}
+			seen[k] = true
+		}
+		for i := 1; i < ly.Grid.NLat(); i++ {
+			if !(ly.Grid.Colat[i] > ly.Grid.Colat[i-1]) {
+				t.Fatalf("rings not north to south: %v", ly.Grid.Colat)
+			}
+		}
+	})
+}
+
+func TestLonLatLayoutNaN(t *testing.T) {
+	if _, err := NewLonLatLayout([]float64{0, 10}, []float64{0, 10, math.NaN(), 30}); err == nil {
+		t.Error("NaN longitude accepted")
+	}
+	if _, err := NewLonLatLayout([]float64{0, 10}, []float64{0, 1e-9, 2e-9}); err == nil {
+		t.Error("a 1e-9 degree step accepted")
+	}
+}

@@ -115,17 +115,17 @@ type Frame struct {
 //	func(p *flux.Pattern) (*flux.Result, error) { return p.WithQStar(2, ref) }
 type Build func(*Pattern) (*Result, error)
 
-// SpinSequence returns the boundary conditions of p turned by
-// Rate * (t - times[0]) degrees about the spin pole at each of the times,
-// each built by build (so the amplitude rule, and q*, is the same in every
-// frame).
+// SpinSequence returns the boundary conditions of p turned by Rate * t
+// degrees about the spin pole at each of the times (p itself is the state
+// at time 0), each built by build (so the amplitude rule, and q*, is the
+// same in every frame).
 func SpinSequence(p *Pattern, s Spin, times []float64, build Build) ([]Frame, error) {
 	if len(times) == 0 {
 		return nil, fmt.Errorf("%w: no sample times", ErrSetting)
 	}
 	frames := make([]Frame, 0, len(times))
 	for _, t := range times {
-		q, err := p.Rotate(s.PoleLon, s.PoleLat, s.Rate*(t-times[0]))
+		q, err := p.Rotate(s.PoleLon, s.PoleLat, s.Rate*t)
 		if err != nil {
 			return nil, err
 		}

@@ -136,7 +136,7 @@ func (o *FitOptions) damping() float64 {
 }
 
 // pointWeights combines validity, NaN, relative and area weights.
-func pointWeights(f []float64, area func(i int) float64, o *FitOptions, rep *FitReport) []float64 {
+func pointWeights(f []float64, area func(i int) float64, o *FitOptions, rep *FitReport) ([]float64, error) {
 	n := len(f)
 	if o != nil && o.Valid != nil && len(o.Valid) != n {
 		panic(fmt.Sprintf("sh: FitOptions.Valid has length %d, want %d", len(o.Valid), n))
@@ -154,13 +154,13 @@ func pointWeights(f []float64, area func(i int) float64, o *FitOptions, rep *Fit
 			continue
 		}
 		if math.IsInf(v, 0) {
-			panic(fmt.Sprintf("sh: fit value %d is infinite", i))
+			return nil, &PointError{Index: i, Reason: fmt.Sprintf("value is %v; mark it invalid or give a finite value", v)}
 		}
 		rw := 1.0
 		if o != nil && o.Weights != nil {
 			rw = o.Weights[i]
 			if rw < 0 || math.IsNaN(rw) || math.IsInf(rw, 0) {
-				panic(fmt.Sprintf("sh: fit weight %d is %v; weights must be finite and >= 0", i, rw))
+				return nil, &PointError{Index: i, Reason: fmt.Sprintf("weight is %v; weights must be finite and >= 0", rw)}
 			}
 		}
 		w[i] = rw * area(i)
@@ -171,7 +171,19 @@ func pointWeights(f []float64, area func(i int) float64, o *FitOptions, rep *Fit
 	if rep.NaN > 0 {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%d of %d values are NaN and were left out", rep.NaN, n))
 	}
-	return w
+	return w, nil
+}
+
+// PointError reports an unusable sample: its index in the values given to
+// the fit (for FitLonLat, the table index j*len(lon)+i) and what is wrong.
+type PointError struct {
+	Index  int
+	Reason string
+}
+
+// Error implements the error interface.
+func (e *PointError) Error() string {
+	return fmt.Sprintf("sh: sample %d: %s", e.Index, e.Reason)
 }
 
 // FitGrid fits coefficients of degree <= lmax to the field sampled on g
@@ -179,8 +191,9 @@ func pointWeights(f []float64, area func(i int) float64, o *FitOptions, rep *Fit
 // (see the package note in fit.go). Area weights come from the grid's
 // quadrature weights when it has them and from Grid.AreaWeights otherwise.
 // It returns a *FitError (wrapping ErrIllPosed) when the degree is not
-// resolved by the coverage, and panics on programmer errors (negative lmax,
-// slices of the wrong length, negative or infinite weights, infinite values).
+// resolved by the coverage and a *PointError for an infinite value or a
+// negative, NaN or infinite weight; it panics on programmer errors
+// (negative lmax, slices of the wrong length).
 func FitGrid(lmax int, g *Grid, field []float64, opt *FitOptions) (*Coeffs, *FitReport, error) {
 	if lmax < 0 {
 		panic("sh: FitGrid with negative lmax")
@@ -196,7 +209,10 @@ func FitGrid(lmax int, g *Grid, field []float64, opt *FitOptions) (*Coeffs, *Fit
 		}
 	}
 	nlon := g.NLon
-	w := pointWeights(field, func(i int) float64 { return ringA[i/nlon] }, opt, rep)
+	w, err := pointWeights(field, func(i int) float64 { return ringA[i/nlon] }, opt, rep)
+	if err != nil {
+		return nil, rep, err
+	}
 	var area float64
 	for i, wi := range w {
 		if wi > 0 {
@@ -224,7 +240,6 @@ func FitGrid(lmax int, g *Grid, field []float64, opt *FitOptions) (*Coeffs, *Fit
 		}
 	}
 	var c *Coeffs
-	var err error
 	if decoupled {
 		rep.Method = "per-order QR"
 		c, err = fitRings(lmax, g, field, ringW, opt, rep)
@@ -596,8 +611,16 @@ func FitPoints(lmax int, colat, lon, values []float64, opt *FitOptions) (*Coeffs
 	if n == 0 {
 		return nil, rep, &FitError{LMax: lmax, SafeLMax: -1, Reason: "no points"}
 	}
+	for i := range colat {
+		if !(colat[i] >= 0 && colat[i] <= math.Pi) || math.IsNaN(lon[i]) || math.IsInf(lon[i], 0) {
+			return nil, rep, &PointError{Index: i, Reason: fmt.Sprintf("colatitude %v, longitude %v is not a point on the sphere (colatitude in [0, pi], finite longitude, radians)", colat[i], lon[i])}
+		}
+	}
 	a := 4 * math.Pi / float64(n)
-	w := pointWeights(values, func(int) float64 { return a }, opt, rep)
+	w, err := pointWeights(values, func(int) float64 { return a }, opt, rep)
+	if err != nil {
+		return nil, rep, err
+	}
 	rep.Coverage = pointCoverage(colat, lon, w)
 	if rep.Used == 0 {
 		return nil, rep, &FitError{LMax: lmax, SafeLMax: -1, Reason: "no valid points"}

@@ -3,6 +3,8 @@ package flux
 import (
 	"fmt"
 	"testing"
+
+	"cmbflux/flux/sh"
 )
 
 // benchRef is the reference used by the benchmarks: 10 TW over the CMB and
@@ -10,15 +12,12 @@ import (
 var benchRef = Reference{HeatFlow: 10 * TW, AdiabaticHeatFlow: 7 * TW, KCore: 40}
 
 // BenchmarkBuild is one full build from dlnVs coefficients of degree 20:
-// conversion, truncation to lmax, taper, grid synthesis, extremum search,
+// conversion, truncation to lmax, cosine taper, grid synthesis, extremum search,
 // amplitude for q* = 3 and all diagnostics (areas and outlines).
 func BenchmarkBuild(b *testing.B) {
 	for _, lmax := range []int{8, 16, 32} {
 		in := randomDlnVs(11, 2*lmax)
-		taper := make([]float64, lmax+1)
-		for l := range taper {
-			taper[l] = 1 - 0.5*float64(l)/float64(lmax)
-		}
+		taper := sh.Taper{Kind: sh.CosineTaper, L1: lmax / 2, L2: lmax + 1}
 		b.Run(fmt.Sprintf("lmax=%d", lmax), func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {

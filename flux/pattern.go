@@ -15,11 +15,15 @@ type PatternOptions struct {
 	// LMax is the truncation degree of the boundary condition; 0 means the
 	// input's LMax.
 	LMax int
-	// Taper holds weights w_l multiplying degree l (for example a cosine
-	// or Gaussian roll-off); nil means no taper. It needs at least LMax+1
-	// entries.
-	Taper []float64
-	// TaperName describes the taper in Diagnostics ("none" when empty).
+	// Taper multiplies degree l by the taper's weight w_l (sh.ParseTaper
+	// reads "none", "cut:L", "cos:L1:L2", "gauss:DEG"); the zero value is no
+	// taper.
+	Taper sh.Taper
+	// Weights, instead of Taper, holds custom weights w_l for degrees
+	// 0..LMax (at least LMax+1 entries, none negative); nil means none.
+	Weights []float64
+	// TaperName describes custom Weights in Diagnostics (default "custom");
+	// a Taper is described by its String form.
 	TaperName string
 	// ResolvedLMax is the highest degree the input resolves (known to the
 	// fit upstream, e.g. from the grid spacing); 0 means the input's LMax.
@@ -90,18 +94,27 @@ func NewPattern(dlnvs *sh.Coeffs, opt *PatternOptions) (*Pattern, error) {
 	if o.LMax < 1 {
 		return nil, fmt.Errorf("%w: lmax %d: a pattern needs degree 1 or more", ErrPattern, o.LMax)
 	}
-	if o.Taper != nil && len(o.Taper) < o.LMax+1 {
-		return nil, fmt.Errorf("%w: taper has %d weights, need LMax+1 = %d", ErrPattern, len(o.Taper), o.LMax+1)
+	var weights []float64
+	switch {
+	case o.Weights != nil && o.Taper.Kind != sh.NoTaper:
+		return nil, fmt.Errorf("%w: both a taper (%s) and custom weights are set; give one", ErrPattern, o.Taper)
+	case o.Weights != nil:
+		if len(o.Weights) < o.LMax+1 {
+			return nil, fmt.Errorf("%w: taper has %d weights, need LMax+1 = %d", ErrPattern, len(o.Weights), o.LMax+1)
+		}
+		weights = o.Weights
+		if o.TaperName == "" {
+			o.TaperName = "custom"
+		}
+	case o.Taper.Kind != sh.NoTaper:
+		weights = o.Taper.Weights(nil, o.LMax)
+		o.TaperName = o.Taper.String()
+	default:
+		o.TaperName = "none"
 	}
-	for l, w := range o.Taper {
+	for l, w := range weights {
 		if math.IsNaN(w) || w < 0 {
 			return nil, fmt.Errorf("%w: taper weight %g at degree %d: weights must be 0 or more (a negative weight flips that degree of the pattern)", ErrPattern, w, l)
-		}
-	}
-	if o.TaperName == "" {
-		o.TaperName = "none"
-		if o.Taper != nil {
-			o.TaperName = "custom"
 		}
 	}
 	if o.ResolvedLMax == 0 {
@@ -109,12 +122,12 @@ func NewPattern(dlnvs *sh.Coeffs, opt *PatternOptions) (*Pattern, error) {
 	}
 	g := in.Truncate(o.LMax)
 	g.C[0] = 0
-	if o.Taper != nil {
+	if weights != nil {
 		for l := 0; l <= o.LMax; l++ {
 			for m := 0; m <= l; m++ {
 				k := sh.Index(l, m)
-				g.C[k] *= o.Taper[l]
-				g.S[k] *= o.Taper[l]
+				g.C[k] *= weights[l]
+				g.S[k] *= weights[l]
 			}
 		}
 	}

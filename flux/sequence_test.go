@@ -145,7 +145,7 @@ func TestDegreeWarnings(t *testing.T) {
 	if !hasWarning(r, "resolves") {
 		t.Errorf("lmax above the resolved degree: warnings %q", r.Warnings)
 	}
-	if _, err := NewPattern(in, &PatternOptions{LMax: 8, Taper: []float64{1, 1}}); err == nil {
+	if _, err := NewPattern(in, &PatternOptions{LMax: 8, Weights: []float64{1, 1}}); err == nil {
 		t.Error("a short taper must be refused")
 	}
 	zero := in.Clone()
@@ -183,7 +183,7 @@ func TestUnitWarnings(t *testing.T) {
 			t.Errorf("usual settings drew a unit warning: %q", w)
 		}
 	}
-	if _, err := NewPattern(randomDlnVs(1, 4), &PatternOptions{Taper: []float64{1, 1, -1, 1, 1}}); err == nil {
+	if _, err := NewPattern(randomDlnVs(1, 4), &PatternOptions{Weights: []float64{1, 1, -1, 1, 1}}); err == nil {
 		t.Error("a negative taper weight must be refused")
 	}
 }
@@ -253,5 +253,35 @@ func TestSampleGridOf(t *testing.T) {
 	r, _ := pg.WithQStar(2, Reference{QMean: 0.05})
 	if !near(r.Diagnostics.QStarContinuous, 2, 1e-9) || r.Diagnostics.QStarMeasuredOn != "gauss:9" {
 		t.Errorf("q* continuous %g on %q, want 2 on gauss:9", r.Diagnostics.QStarContinuous, r.Diagnostics.QStarMeasuredOn)
+	}
+}
+
+func TestTaper(t *testing.T) {
+	// A cut taper at degree 2 removes the Y_3^0 term, leaving Y_1^0 with its
+	// closed-form extrema q_mean (1 +- q*/2) at the poles (see
+	// TestZonalY10ClosedForms); a cosine taper cos:1:3 halves degree 2
+	// ((1 + cos(pi/2))/2 = 1/2, the raised-cosine formula of sh.Taper).
+	c, _ := Harmonics(Term{L: 1, M: 0, Weight: 1}, Term{L: 3, M: 0, Weight: 5})
+	tp, err := sh.ParseTaper("cut:2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := NewPattern(c, &PatternOptions{Taper: tp})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, _ := p.WithQStar(2, Reference{QMean: 0.05})
+	d := r.Diagnostics
+	if d.Taper != "cut:2" || !near(d.QMax, 100, tolRel) || !near(d.QMin, 0, 1e-6) || math.Abs(d.QMaxLonLat[1]-90) > 1e-4 {
+		t.Errorf("cut:2: taper %q, q_max %g at %v, q_min %g; want cut:2, 100 at the north pole, 0", d.Taper, d.QMax, d.QMaxLonLat, d.QMin)
+	}
+	c2, _ := Harmonics(Term{L: 2, M: 0, Weight: 1})
+	tp, _ = sh.ParseTaper("cos:1:3")
+	p2, _ := NewPattern(c2, &PatternOptions{Taper: tp})
+	if got := p2.Coeffs().C[sh.Index(2, 0)]; !near(got, 0.5, 1e-12) {
+		t.Errorf("cos:1:3 weight at degree 2 = %g, want 0.5", got)
+	}
+	if _, err := NewPattern(c, &PatternOptions{Taper: tp, Weights: []float64{1, 1, 1, 1}}); err == nil {
+		t.Error("a taper and custom weights together must be refused")
 	}
 }

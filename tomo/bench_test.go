@@ -111,3 +111,24 @@ func BenchmarkSelectLayer(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkSafeDegree estimates the degree limit of 0.5-degree layers with
+// a 10-degree polar cap missing and with a sprinkled mask (fixed pattern)
+// that forces the coarse search.
+func BenchmarkSafeDegree(b *testing.B) {
+	for _, c := range []struct {
+		name string
+		keep func(lon, lat float64) bool
+	}{
+		{"cap", func(lon, lat float64) bool { return lat < 80 }},
+		{"sprinkled", func(lon, lat float64) bool { return int(lon*7+lat*13)%3 != 0 }},
+	} {
+		l := maskedLayer(0.5, c.keep)
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				SafeDegree(l)
+			}
+		})
+	}
+}

@@ -109,6 +109,9 @@ func Normalize(g *Grid, opts UnitOptions) (*Grid, *UnitReport, error) {
 	out.Warnings = append([]string(nil), g.Warnings...)
 	nlat, nlon := g.NLat(), g.NLon()
 	plane := nlat * nlon
+	if (from == UnitPercent || from == UnitFraction) && (opts.RefVelocity != 0 || opts.RefLayerMean) {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("a reference velocity was given, but the values are relative anomalies (%s): it was not used", from))
+	}
 	switch from {
 	case UnitPercent:
 		for s, v := range g.Values {

@@ -61,6 +61,9 @@ func TestNormalizeConversions(t *testing.T) {
 			if g.Values[0] != tc.in {
 				t.Error("Normalize modified its input")
 			}
+			if len(rep.Warnings) != 0 {
+				t.Errorf("unexpected warnings %q", rep.Warnings)
+			}
 		})
 	}
 }
@@ -85,7 +88,7 @@ func TestNormalizeMeanIsAreaWeighted(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rep.RefVelocity) != 1 || math.Abs(rep.RefVelocity[0]-7.1) > 1e-14 {
+	if len(rep.Warnings) != 0 || len(rep.RefVelocity) != 1 || math.Abs(rep.RefVelocity[0]-7.1) > 1e-14 {
 		t.Errorf("RefVelocity = %v, want [7.1]", rep.RefVelocity)
 	}
 	if v := out.Values[4]; math.Abs(v-(7.0-7.1)/7.1) > 1e-14 {
@@ -146,5 +149,12 @@ func TestNormalizePlausibility(t *testing.T) {
 	h := fourRowGrid([4]float64{7, 7, 7, 7}, "fraction")
 	if _, _, err := Normalize(h, UnitOptions{}); err == nil || !strings.Contains(err.Error(), "largest 700 %") {
 		t.Errorf("7 km/s read as a fraction: %v", err)
+	}
+}
+
+func TestNormalizeUnusedReference(t *testing.T) {
+	_, rep, err := Normalize(fourRowGrid([4]float64{1, 2, -1, 0}, "percent"), UnitOptions{RefVelocity: 7.2})
+	if err != nil || len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "it was not used") {
+		t.Errorf("%v %q", err, rep.Warnings)
 	}
 }

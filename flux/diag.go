@@ -185,13 +185,13 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 		}
 		if qm <= qad {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("sub-adiabatic mean: the mean flux %.4g mW/m^2 is not above the adiabatic flux %.4g mW/m^2: the top of the core is sub-adiabatic on average (thermally stratified); check the heat flow and the adiabatic reference", qm*mw, qad*mw))
-		} else if f > 0 {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("sub-adiabatic heat flux: q < q_ad = %.4g mW/m^2 over %.2f%% of the CMB: sub-adiabatic, thermally stratified patches under the slow mantle (q_min = %.4g mW/m^2)", qad*mw, 100*f, qmin*mw))
+		} else if qmin < qad {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("sub-adiabatic heat flux: q < q_ad = %.4g mW/m^2 over %.3g%% of the CMB: sub-adiabatic, thermally stratified patches under the slow mantle (q_min = %.4g mW/m^2)", qad*mw, 100*f, qmin*mw))
 		}
 	}
-	if f := d.AreaFractionNegative; f > 0 {
+	if qmin < 0 {
 		crit := -(p.refMax - p.refMin) / p.min.value
-		r.Warnings = append(r.Warnings, fmt.Sprintf("negative heat flux: q_min = %.4g mW/m^2 is negative: the core gains heat over %.2f%% of the CMB (q* = %.4g; this pattern turns negative above q* = %.4g); make sure the simulation code is meant to run with inward flux, or lower q*", qmin*mw, 100*f, d.QStar, crit))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("negative heat flux: q_min = %.4g mW/m^2 is negative: the core gains heat over %.3g%% of the CMB (q* = %.4g; this pattern turns negative above q* = %.4g); make sure the simulation code is meant to run with inward flux, or lower the amplitude", qmin*mw, 100*d.AreaFractionNegative, d.QStar, crit))
 	}
 	if p.refOn != "" && d.QStarContinuous > d.QStar*(1+1e-9) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("q* measured on a grid: q* = %.4g is measured on grid %q; the continuous field exported reaches q* = %.4g (%.1f%% more), which is what a code evaluating the expansion sees", d.QStar, p.refOn, d.QStarContinuous, 100*(d.QStarContinuous/d.QStar-1)))

@@ -57,7 +57,8 @@ type LayerOptions struct {
 	Depth float64
 	// Top and Bottom, when Bottom > Top, average every level with
 	// Top <= depth <= Bottom (km), weighted by r^2 times the level's
-	// trapezoidal thickness (see SelectLayer).
+	// trapezoidal thickness (see SelectLayer). Top == Bottom is an error
+	// unless both are 0; Bottom > Top takes precedence over Depth.
 	Top, Bottom float64
 	// Units converts the grid's values to dlnVs (see Normalize).
 	Units UnitOptions
@@ -84,8 +85,8 @@ const nearWarnKm = 50
 // or range adds a warning. An error is returned for a grid that fails
 // Check, when no level falls in the range, and for the errors of Normalize.
 func SelectLayer(g *Grid, opts LayerOptions) (*Layer, error) {
-	if opts.Bottom < opts.Top || opts.Depth < 0 {
-		return nil, fmt.Errorf("tomo: depth range %g..%g km (depth %g km) is not valid: need 0 <= top < bottom", opts.Top, opts.Bottom, opts.Depth)
+	if opts.Bottom < opts.Top || (opts.Top == opts.Bottom && opts.Top != 0) || opts.Depth < 0 {
+		return nil, fmt.Errorf("tomo: depth range %g..%g km (depth %g km) is not valid: a range needs top < bottom, a single level a depth > 0", opts.Top, opts.Bottom, opts.Depth)
 	}
 	if err := g.Check(); err != nil {
 		return nil, err

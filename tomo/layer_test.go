@@ -153,6 +153,11 @@ func TestSelectLayerMasks(t *testing.T) {
 	if c := avg.Coverage(); math.Abs(c-0.75) > 1e-15 {
 		t.Errorf("Coverage = %g, want 0.75", c)
 	}
+	for _, bad := range []LayerOptions{{Top: 2891, Bottom: 2800}, {Top: 2800, Bottom: 2800}, {Depth: -1}} {
+		if _, err := SelectLayer(g, bad); err == nil || !strings.Contains(err.Error(), "is not valid") {
+			t.Errorf("options %+v: %v", bad, err)
+		}
+	}
 	if _, err := SelectLayer(g, LayerOptions{Top: 1000, Bottom: 2000}); err == nil || !strings.Contains(err.Error(), "the levels are 2800, 2891 km") {
 		t.Errorf("empty range: %v", err)
 	}

@@ -344,3 +344,53 @@ func TestCompareProfiles(t *testing.T) {
 		t.Error("cmp2 was created")
 	}
 }
+
+// TestCompareHelpExample runs the worked example of compare --help, with the
+// files it names made first, and the vote consensus.
+func TestCompareHelpExample(t *testing.T) {
+	t.Chdir(t.TempDir())
+	// The example's printf line.
+	writeFile(t, "points.txt", "15 -5 first\n195 8 second\n100 -30\n")
+	nc, err := os.ReadFile(demoFile("brindle.nc"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, "a.nc", string(nc))
+	writeVariants(t)
+	if err := os.Rename("merle.txt", "b.txt"); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(compareExample, "\n")
+	n := 0
+	for i := 0; i < len(lines); i++ {
+		cmd := strings.TrimSpace(lines[i])
+		for strings.HasSuffix(cmd, "\\") && i+1 < len(lines) {
+			i++
+			cmd = strings.TrimSuffix(cmd, "\\") + " " + strings.TrimSpace(lines[i])
+		}
+		if !strings.HasPrefix(cmd, "cmbflux ") {
+			continue
+		}
+		args, err := shellWords(cmd)
+		if err != nil {
+			t.Fatal(err)
+		}
+		mustCLI(t, args[1:]...)
+		n++
+	}
+	if n != 2 {
+		t.Fatalf("ran %d example commands, want 2", n)
+	}
+	for _, f := range []string{"cmp/points.tsv", "cmp/consensus/coefficients.txt", "cmp-ab/correlation.tsv"} {
+		if _, err := os.Stat(f); err != nil {
+			t.Error(err)
+		}
+	}
+	mustCLI(t, "compare", "--demo", "--lmax", "6", "--consensus", "votes", "--qstar", "2", "--qmean", "80", "--quiet", "--out", "votes")
+	if s := loadSummary(t, "votes/consensus"); math.Abs(s.QStar-2) > 1e-6 || !strings.Contains(s.Layer, "vote map") {
+		t.Errorf("vote consensus: q* %g, layer %q", s.QStar, s.Layer)
+	}
+	if _, err := export.Verify("votes"); err != nil {
+		t.Error(err)
+	}
+}

@@ -66,6 +66,7 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 		case "png", "svg":
 			var b bytes.Buffer
 			mp := mapFigure(f.out, f, s)
+			mp.Outlines = mapOutlines(sp, pt, f)
 			if format == "png" {
 				err = mp.WritePNG(&b)
 			} else {
@@ -109,7 +110,7 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 	}
 	if sp.Has("html") {
 		sort.Strings(names)
-		html, err := buildReport(sp, s, f.out, f, st.Tmp, names)
+		html, err := buildReport(sp, pt, s, f.out, f, st.Tmp, names)
 		if err != nil {
 			return nil, err
 		}
@@ -244,6 +245,26 @@ func mapFigure(c *sh.Coeffs, f *field, s *Summary) *figure.Map {
 		title = fmt.Sprintf("%s, lmax %d", f.what, s.LMax)
 	}
 	return &figure.Map{Title: title, Grid: g, Center: mean, Label: s.Quantity, Units: f.units}
+}
+
+// mapOutlines draws the regions of negative flux (solid) and of
+// sub-adiabatic flux (dashed) over a map.
+func mapOutlines(sp *config.Spec, pt *pattern, f *field) []figure.Outline {
+	var out []figure.Outline
+	for _, o := range outlines(sp, pt, f) {
+		name, _ := o.Props["region"].(string)
+		switch name {
+		case "negative heat flux":
+			if len(o.Rings) > 0 {
+				out = append(out, figure.Outline{Rings: o.Rings, Label: "q < 0", Style: figure.Solid})
+			}
+		case "sub-adiabatic heat flux":
+			if len(o.Rings) > 0 {
+				out = append(out, figure.Outline{Rings: o.Rings, Label: "q < q_ad", Style: figure.Dashed})
+			}
+		}
+	}
+	return out
 }
 
 // degreePower returns the mean square of each degree of canonical c,

@@ -128,7 +128,7 @@ func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 	raw := v.(*sh.Coeffs)
 	key := expKey + fmt.Sprintf(" taper=%s rotate=%g", sp.Taper, sp.Rotate)
 	v, err = c.get(key, func() (any, error) {
-		tw, err := taperWeights(sp.Taper, sp.LMax)
+		tp, err := parseTaper(sp.Taper)
 		if err != nil {
 			return nil, err
 		}
@@ -136,7 +136,7 @@ func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 		if sp.Rotate != 0 {
 			d = d.ShiftLongitude(sp.Rotate * math.Pi / 180)
 		}
-		fp, err := flux.NewPattern(d, &flux.PatternOptions{LMax: sp.LMax, Taper: tw, TaperName: sp.Taper, ResolvedLMax: src.safe.Lmax})
+		fp, err := flux.NewPattern(d, &flux.PatternOptions{LMax: sp.LMax, Taper: tp, ResolvedLMax: src.safe.Lmax})
 		if err != nil {
 			return nil, wrapInput(src.name, err)
 		}

@@ -16,10 +16,12 @@ const conventionReminder = "Check the coefficients against the documentation of 
 
 // buildReport returns the HTML report of one build. dir holds the files
 // already written (their hashes go into the report).
-func buildReport(sp *config.Spec, s *Summary, out *sh.Coeffs, f *field, dir string, files []string) ([]byte, error) {
+func buildReport(sp *config.Spec, pt *pattern, s *Summary, out *sh.Coeffs, f *field, dir string, files []string) ([]byte, error) {
 	var figs []htmlreport.Figure
 	var b bytes.Buffer
-	if err := mapFigure(out, f, s).WritePNG(&b); err != nil {
+	mp := mapFigure(out, f, s)
+	mp.Outlines = mapOutlines(sp, pt, f)
+	if err := mp.WritePNG(&b); err != nil {
 		return nil, err
 	}
 	figs = append(figs, htmlreport.Figure{Caption: "Map of the " + f.what + " (" + f.units + "), Mollweide projection.", MIME: "image/png", Data: append([]byte(nil), b.Bytes()...)})

@@ -64,8 +64,8 @@ type Diagnostics struct {
 	// Degree2PowerFraction is the fraction of the power of the anomaly in
 	// degree 2.
 	Degree2PowerFraction float64 `json:"degree2_power_fraction"`
-	// SlowestLonLat is where the input dlnVs (all its degrees) is lowest,
-	// [lon, lat] in degrees.
+	// SlowestLonLat is where the input dlnVs (all its degrees up to 128)
+	// is lowest, [lon, lat] in degrees.
 	SlowestLonLat [2]float64 `json:"slowest_lonlat"`
 	// MinToSlowestDeg is the angle in degrees from the slowest point of the
 	// input to the flux minimum.

@@ -173,7 +173,9 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 	p.surf = surf
 	p.refMax, p.refMin = p.max.value, p.min.value
 	if in != nil {
-		inp := in.Clone()
+		// The slowest point of the input, searched up to degree 128 (enough
+		// to place a province; higher degrees would only cost time).
+		inp := in.Truncate(min(in.LMax, 128))
 		inp.C[0] = 0
 		ig := newDenseGrid(inp, max(os*(inp.LMax+1), 48), false)
 		_, mn, _, _ := extrema(inp, ig)

@@ -723,7 +723,10 @@ func (s *Surface) visit(c float64, fn func(g *segment)) (est float64, count int)
 // fixed apex over the oriented pieces, so no rings need assembling. With
 // derivatives, each piece also gets the area between its chord and the
 // curved contour (see Field), which raises the order of accuracy from two to
-// about four; the rings from Rings are the plain polygons.
+// about four, and edges are screened for a pair of crossings (a band or
+// region that dips between two nodes); with Lines the crossings are exact.
+// A region inside one cell that cuts none of its edges is not seen (see
+// CellBelow). The rings from Rings are the plain polygons.
 func (s *Surface) AreaBelow(level float64) float64 {
 	sum := 0.0
 	est, count := s.visit(level, func(g *segment) {

@@ -58,7 +58,7 @@ func TestSelectLayerNearest(t *testing.T) {
 }
 
 // TestShellWeights checks the depth-average weights against the
-// trapezoidal rule (Abramowitz & Stegun 1964, 25.4.2) applied to the
+// trapezoidal rule (Abramowitz & Stegun 1964, 25.4.2, from memory) applied to the
 // volume integral over the shell, integral of f(r) r^2 dr, with
 // r = 6371 km - depth (PREM Earth radius, from memory).
 func TestShellWeights(t *testing.T) {

@@ -14,7 +14,8 @@ var pow10 = [...]float64{
 // parseFloat parses a decimal number from b. It returns ok == false when b
 // is not a number. Decimal numbers with at most 15 significant digits and a
 // decimal exponent within +-22 are converted by Clinger's fast path (Clinger
-// 1990, "How to read floating point numbers accurately", PLDI): the
+// 1990, "How to read floating point numbers accurately", PLDI; from
+// memory): the
 // mantissa and the power of ten are both exact in float64, so one IEEE
 // multiplication or division gives the correctly rounded result, identical
 // to strconv.ParseFloat. Everything else (long mantissas, large exponents,

@@ -121,7 +121,8 @@ func DetectFormat(data []byte) string {
 	if bytes.HasPrefix(data, []byte(hdf5Magic)) {
 		return "hdf5"
 	}
-	// Byte-order marks of UTF-16 (The Unicode Standard, section 23.8).
+	// Byte-order marks of UTF-16: U+FEFF little- or big-endian (The
+	// Unicode Standard; from memory).
 	if bytes.HasPrefix(data, []byte("\xff\xfe")) || bytes.HasPrefix(data, []byte("\xfe\xff")) {
 		return "utf16"
 	}

@@ -99,3 +99,35 @@ func TestConvertPreservesField(t *testing.T) {
 func closeRel(a, b, tol float64) bool {
 	return math.Abs(a-b) <= tol*math.Max(math.Abs(a), math.Abs(b))
 }
+
+func TestParseNormalization(t *testing.T) {
+	for _, n := range []Normalization{Orthonormal, FourPi, Schmidt, Unnormalized} {
+		got, err := ParseNormalization(n.String())
+		if err != nil || got != n {
+			t.Errorf("ParseNormalization(%q) = %v, %v", n.String(), got, err)
+		}
+	}
+	for in, want := range map[string]Normalization{"4pi": FourPi, " Schmidt-Semi ": Schmidt, "ortho": Orthonormal, "none": Unnormalized} {
+		if got, err := ParseNormalization(in); err != nil || got != want {
+			t.Errorf("ParseNormalization(%q) = %v, %v; want %v", in, got, err, want)
+		}
+	}
+	if _, err := ParseNormalization("quasi"); err == nil {
+		t.Error(`ParseNormalization("quasi"): no error`)
+	}
+}
+
+func FuzzParseNormalization(f *testing.F) {
+	for _, s := range []string{"orthonormal", "4pi", "schmidt", "unnormalized", "geodesy", ""} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		n, err := ParseNormalization(s)
+		if err != nil {
+			return
+		}
+		if back, err := ParseNormalization(n.String()); err != nil || back != n {
+			t.Fatalf("%q -> %v -> %q -> %v, %v", s, n, n.String(), back, err)
+		}
+	})
+}

@@ -26,7 +26,7 @@ const (
 	CosineTaper
 	// GaussTaper is Gaussian averaging on the sphere (Jekeli 1981, Ohio
 	// State Univ. Rep. 327; Wahr, Molenaar & Bryan 1998, JGR 103, 30205,
-	// eqs. 30-34): convolution with the kernel
+	// eqs. 30-34, equation numbers from memory): convolution with the kernel
 	//
 	//	W(gamma) proportional to exp(-b (1 - cos gamma)),  b = ln 2 / (1 - cos r),
 	//

@@ -19,7 +19,9 @@ var pow10 = [...]float64{
 // mantissa and the power of ten are both exact in float64, so one IEEE
 // multiplication or division gives the correctly rounded result, identical
 // to strconv.ParseFloat. Everything else (long mantissas, large exponents,
-// NaN, Inf, hexadecimal) goes to strconv.ParseFloat.
+// NaN, Inf, hexadecimal) goes to strconv.ParseFloat. The Fortran exponent
+// letters D and d (double-precision output, "1.5D+02") are accepted like E
+// (common practice in files written by Fortran programs).
 func parseFloat[T string | []byte](b T) (float64, bool) {
 	i, n := 0, len(b)
 	if n == 0 {
@@ -57,7 +59,11 @@ func parseFloat[T string | []byte](b T) (float64, bool) {
 	if !sawDigit {
 		return slowFloat(b)
 	}
-	if i < n && (b[i] == 'e' || b[i] == 'E') {
+	fortran := false
+	if i < n && (b[i] == 'e' || b[i] == 'E' || b[i] == 'd' || b[i] == 'D') {
+		if b[i] == 'd' || b[i] == 'D' {
+			fortran = true
+		}
 		i++
 		eneg := false
 		if i < n && (b[i] == '-' || b[i] == '+') {
@@ -78,7 +84,20 @@ func parseFloat[T string | []byte](b T) (float64, bool) {
 		}
 		exp += e
 	}
-	if i != n || digits > 15 || exp < -22 || exp > 22 {
+	if i != n {
+		return slowFloat(b)
+	}
+	if digits > 15 || exp < -22 || exp > 22 {
+		if fortran {
+			// strconv does not know the Fortran exponent letter.
+			c := []byte(string(b))
+			for k, ch := range c {
+				if ch == 'd' || ch == 'D' {
+					c[k] = 'e'
+				}
+			}
+			return slowFloat(c)
+		}
 		return slowFloat(b)
 	}
 	f := float64(mant)

@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -55,6 +56,18 @@ func checkParse(t *testing.T, s string) {
 	}
 	if math.Float64bits(got) != math.Float64bits(want) && !(math.IsNaN(got) && math.IsNaN(want)) {
 		t.Errorf("parseFloat(%q) = %v (%x), strconv gives %v (%x)", s, got, math.Float64bits(got), want, math.Float64bits(want))
+	}
+}
+
+// TestParseFloatFortran checks the Fortran exponent letter D: the value
+// must equal strconv.ParseFloat of the same text with E.
+func TestParseFloatFortran(t *testing.T) {
+	for _, s := range []string{"1.5D+02", "-2.891d3", "7.25D-01", "1.2345678901234567890D+02", "1d-30", "0.0D0"} {
+		want, err := strconv.ParseFloat(strings.NewReplacer("D", "e", "d", "e").Replace(s), 64)
+		got, ok := parseFloat([]byte(s))
+		if err != nil || !ok || got != want {
+			t.Errorf("parseFloat(%q) = %v, %v; want %v", s, got, ok, want)
+		}
 	}
 }
 

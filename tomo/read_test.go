@@ -553,3 +553,25 @@ func TestReadGzip(t *testing.T) {
 		t.Error("sha256 is not that of the compressed bytes")
 	}
 }
+
+// TestReadFileStdin reads "-" from standard input.
+func TestReadFileStdin(t *testing.T) {
+	r, w, err := os.Pipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	old := os.Stdin
+	os.Stdin = r
+	defer func() { os.Stdin = old; r.Close() }()
+	go func() {
+		w.WriteString("lon,lat,dvs\n0,-45,1\n180,-45,2\n0,45,3\n180,45,4\n")
+		w.Close()
+	}()
+	g, err := ReadFile("-", ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g.Source.Path != "-" || g.Source.Format != "csv" || !slices.Equal(g.Values, []float64{1, 2, 3, 4}) {
+		t.Errorf("stdin grid %+v", g)
+	}
+}

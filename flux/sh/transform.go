@@ -90,7 +90,8 @@ var (
 
 // Transform is a reusable plan for synthesis and analysis between
 // coefficients of degree <= LMax (canonical convention) and fields on one
-// Grid. A Transform is immutable after NewTransform; its methods are safe
+// Grid. Apart from Workers, a Transform is immutable after NewTransform;
+// its methods are safe
 // for concurrent use by several goroutines (scratch space comes from an
 // internal free list), and a single call can itself use several goroutines
 // (Workers).
@@ -111,15 +112,25 @@ type Transform struct {
 }
 
 // NewTransform returns a plan for degree lmax on grid g. It panics if
-// lmax < 0 or the grid is empty. A grid that cannot resolve lmax (see
-// Grid.MaxDegree) is allowed for synthesis; Analysis on it is then only
-// approximate (aliased).
+// lmax < 0, the grid is empty, its colatitudes are not strictly ascending
+// within [0, pi], or its Weight (when set) has the wrong length. A grid that
+// cannot resolve lmax (see Grid.MaxDegree) is allowed for synthesis;
+// Analysis on it is then only approximate (aliased). The plan keeps g: do
+// not change the grid afterwards.
 func NewTransform(lmax int, g *Grid) *Transform {
 	if lmax < 0 {
 		panic("sh: NewTransform with negative lmax")
 	}
 	if g == nil || g.NLat() == 0 || g.NLon < 1 {
 		panic("sh: NewTransform on an empty grid")
+	}
+	for i, c := range g.Colat {
+		if !(c >= 0 && c <= math.Pi) || (i > 0 && !(c > g.Colat[i-1])) {
+			panic(fmt.Sprintf("sh: grid ring %d at colatitude %v: rings must ascend strictly within [0, pi]", i, c))
+		}
+	}
+	if g.Weight != nil && len(g.Weight) != g.NLat() {
+		panic(fmt.Sprintf("sh: grid has %d weights for %d rings", len(g.Weight), g.NLat()))
 	}
 	t := &Transform{lmax: lmax, grid: g, nlon: g.NLon, rc: newRecursion(lmax)}
 	t.rg = newRingSet(g.Colat)

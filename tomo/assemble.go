@@ -342,7 +342,7 @@ func (b *builder) build() (*Grid, error) {
 		}
 		return (k*nlat+latAx.of[b.latID[r]])*nlon + lonAx.of[b.lonID[r]]
 	}
-	if total > len(b.val) {
+	if float64(nlon)*float64(nlat)*float64(nd) > float64(len(b.val)) { // float: no overflow
 		// Fewer records than points: the grid is incomplete. Find the first
 		// missing point without allocating the (possibly huge) grid.
 		filled := make(map[int]bool, len(b.val))
@@ -353,7 +353,7 @@ func (b *builder) build() (*Grid, error) {
 		for filled[s] {
 			s++
 		}
-		return nil, b.incomplete(g, s, total-len(filled), total, nlat, nlon)
+		return nil, b.incomplete(g, s, float64(nlon)*float64(nlat)*float64(nd)-float64(len(filled)), float64(nlon)*float64(nlat)*float64(nd), nlat, nlon)
 	}
 	g.Values = make([]float64, total)
 	owner := make([]int32, total) // record that filled each point, -1 if none
@@ -407,7 +407,7 @@ func (b *builder) build() (*Grid, error) {
 				missing++
 			}
 		}
-		return nil, b.incomplete(g, s, missing, total, nlat, nlon)
+		return nil, b.incomplete(g, s, float64(missing), float64(total), nlat, nlon)
 	}
 
 	// Validity mask.
@@ -439,8 +439,9 @@ func (b *builder) build() (*Grid, error) {
 }
 
 // incomplete reports the missing point s of a grid with missing of total
-// points absent.
-func (b *builder) incomplete(g *Grid, s, missing, total, nlat, nlon int) error {
+// points absent (counts as float64: the product of the axis lengths of a
+// hostile file may overflow int).
+func (b *builder) incomplete(g *Grid, s int, missing, total float64, nlat, nlon int) error {
 	k, j, i := s/(nlat*nlon), (s/nlon)%nlat, s%nlon
 	where := fmt.Sprintf("lon %g, lat %g", g.Lon[i], g.Lat[j])
 	combo := "lon-lat"
@@ -449,7 +450,7 @@ func (b *builder) incomplete(g *Grid, s, missing, total, nlat, nlon int) error {
 		combo = "lon-lat-depth"
 	}
 	return inputErr(b.file, 0,
-		"the grid is incomplete: %d of %d points are missing, the first at %s; every %s combination must appear once (write NaN where there is no data)",
+		"the grid is incomplete: %.0f of %.0f points are missing, the first at %s; every %s combination must appear once (write NaN where there is no data)",
 		missing, total, where, combo)
 }
 

@@ -432,10 +432,18 @@ func (s *Surface) meridianAt(i, j int, t float64) crossing {
 	return x
 }
 
+// next returns the column east of j (periodic).
+func (s *Surface) next(j int) int {
+	if j+1 == s.n {
+		return 0
+	}
+	return j + 1
+}
+
 // parallelAt returns the crossing at parameter t on the edge of row i
 // between columns j (t = 0) and j+1 (t = 1, periodic).
 func (s *Surface) parallelAt(i, j int, t float64) crossing {
-	j1 := (j + 1) % s.n
+	j1 := s.next(j)
 	k0, k1 := i*s.n+j, i*s.n+j1
 	lon := s.lon0 + (float64(j)+t)*s.dlon
 	sl, cl := math.Sincos(lon * deg)
@@ -484,7 +492,7 @@ func (s *Surface) meridianCut(i, j int, c float64) edgeCut {
 // parallelCut returns the crossings of level c on the edge of row i between
 // columns j and j+1.
 func (s *Surface) parallelCut(i, j int, c float64) edgeCut {
-	j1 := (j + 1) % s.n
+	j1 := s.next(j)
 	k0, k1 := i*s.n+j, i*s.n+j1
 	e := edgeCut{id: 2*(i*s.n+j) + 1}
 	herm := s.dv != nil && s.cosLat[i] > 1e-12
@@ -673,9 +681,13 @@ func (s *Surface) cellSegments(out *[4]segment, memo *edgeMemo, sc *scratch, i, 
 		}
 		var r int
 		if nr == 2 || centreBelow {
-			r = (q + 1) % nr
+			if r = q + 1; r == nr {
+				r = 0
+			}
 		} else {
-			r = (q + nr - 1) % nr
+			if r = q - 1; r < 0 {
+				r = nr - 1
+			}
 		}
 		out[ns] = segment{from: ring[q].id, to: ring[r].id, a: *ring[q].x, b: *ring[r].x}
 		ns++

@@ -8,15 +8,18 @@ import (
 
 // Points is a reusable plan for synthesis at, and the transposed operator
 // from, a set of scattered points (colatitude, east longitude, radians).
-// Each point is treated as a ring of one; points mirrored about the equator
-// share their Legendre recursion. One synthesis costs O(LMax^2) per
-// distinct colatitude pair plus O(LMax) per point. Points is safe for
-// concurrent use.
+// Points with the same colatitude form one ring and share its Legendre sums;
+// rings mirrored about the equator share their recursion. One synthesis
+// costs O(LMax^2) per distinct colatitude pair plus O(LMax) per point, so a
+// regular grid given as a list of points costs little more than on a Grid.
+// Points is safe for concurrent use.
 type Points struct {
 	lmax       int
 	colat, lon []float64
 	rc         *recursion
-	rg         *ringSet
+	rg         *ringSet  // over the distinct colatitudes
+	ringStart  []int     // points of ring r are pts[ringStart[r]:ringStart[r+1]]
+	pts        []int     // point indices grouped by ring
 	c1, s1     []float64 // cos and sin of each longitude
 	pool       sync.Pool // *pointWork
 }
@@ -42,7 +45,24 @@ func NewPoints(lmax int, colat, lon []float64) *Points {
 		}
 	}
 	p := &Points{lmax: lmax, colat: append([]float64(nil), colat...), lon: append([]float64(nil), lon...), rc: newRecursion(lmax)}
-	p.rg = newPointRings(p.colat)
+	p.pts = make([]int, len(colat))
+	for i := range p.pts {
+		p.pts[i] = i
+	}
+	sortByColat(p.pts, p.colat)
+	var ucolat []float64
+	for k, i := range p.pts {
+		if k == 0 || p.colat[i] != ucolat[len(ucolat)-1] {
+			ucolat = append(ucolat, p.colat[i])
+			p.ringStart = append(p.ringStart, k)
+		}
+	}
+	p.ringStart = append(p.ringStart, len(p.pts))
+	if len(ucolat) > 0 {
+		p.rg = newRingSet(ucolat)
+	} else {
+		p.rg = &ringSet{}
+	}
 	p.c1, p.s1 = make([]float64, len(lon)), make([]float64, len(lon))
 	for i, l := range p.lon {
 		p.s1[i], p.c1[i] = math.Sincos(l)
@@ -50,27 +70,8 @@ func NewPoints(lmax int, colat, lon []float64) *Points {
 	return p
 }
 
-// newPointRings pairs points whose colatitudes mirror each other exactly
-// after sorting; unpaired points are single rings.
-func newPointRings(colat []float64) *ringSet {
-	idx := make([]int, len(colat))
-	for i := range idx {
-		idx[i] = i
-	}
-	sortByColat(idx, colat)
-	sorted := make([]float64, len(idx))
-	for k, i := range idx {
-		sorted[k] = colat[i]
-	}
-	rs := newRingSet(sorted)
-	for p := range rs.north {
-		rs.north[p] = idx[rs.north[p]]
-		if rs.south[p] >= 0 {
-			rs.south[p] = idx[rs.south[p]]
-		}
-	}
-	return rs
-}
+// ring returns the point indices of distinct-colatitude ring r.
+func (p *Points) ring(r int) []int { return p.pts[p.ringStart[r]:p.ringStart[r+1]] }
 
 func sortByColat(idx []int, colat []float64) {
 	// Simple merge sort keeps this allocation-light and stable.
@@ -143,9 +144,15 @@ func (p *Points) Synthesis(dst []float64, c *Coeffs) []float64 {
 		}
 		p.rg.legendre(lw, p.rc, m, lmax, false, p.starts(lw, m, lmax))
 		for q, n := range p.rg.north {
-			dst[n] += (lw.er[q]+lw.or[q])*w.cm[n] + (lw.ei[q]+lw.oi[q])*w.sm[n]
+			a, b := lw.er[q]+lw.or[q], lw.ei[q]+lw.oi[q]
+			for _, i := range p.ring(n) {
+				dst[i] += a*w.cm[i] + b*w.sm[i]
+			}
 			if s := p.rg.south[q]; s >= 0 {
-				dst[s] += (lw.er[q]-lw.or[q])*w.cm[s] + (lw.ei[q]-lw.oi[q])*w.sm[s]
+				a, b := lw.er[q]-lw.or[q], lw.ei[q]-lw.oi[q]
+				for _, i := range p.ring(s) {
+					dst[i] += a*w.cm[i] + b*w.sm[i]
+				}
 			}
 		}
 	}
@@ -170,10 +177,16 @@ func (p *Points) Adjoint(dst *Coeffs, v []float64) *Coeffs {
 	for m := 0; m <= p.lmax; m++ {
 		p.trig(w, m)
 		for q, n := range p.rg.north {
-			gr, gi := v[n]*w.cm[n], v[n]*w.sm[n]
-			var hr, hi float64
+			var gr, gi, hr, hi float64
+			for _, i := range p.ring(n) {
+				gr += v[i] * w.cm[i]
+				gi += v[i] * w.sm[i]
+			}
 			if s := p.rg.south[q]; s >= 0 {
-				hr, hi = v[s]*w.cm[s], v[s]*w.sm[s]
+				for _, i := range p.ring(s) {
+					hr += v[i] * w.cm[i]
+					hi += v[i] * w.sm[i]
+				}
 			}
 			lw.er[q], lw.ei[q] = gr+hr, gi+hi
 			lw.or[q], lw.oi[q] = gr-hr, gi-hi

@@ -302,3 +302,31 @@ func TestSynthesisDegreeMismatch(t *testing.T) {
 		}
 	}
 }
+
+// TestPointsOnRings gives the points of a regular grid as a list in
+// shuffled order: points sharing a colatitude share their Legendre sums,
+// and the result must equal synthesis on the grid (same expansion,
+// independent summation order) and the adjoint the transposed synthesis
+// (TestPoints' identity).
+func TestPointsOnRings(t *testing.T) {
+	const lmax, tol = 30, 1e-12
+	g := NewLonLat(24, 48, CellRegistered)
+	c := trRandCoeffs(lmax, 15)
+	want := NewTransform(lmax, g).Synthesis(nil, c)
+	r := rand.New(rand.NewPCG(3, 4))
+	perm := r.Perm(g.Len())
+	colat, lon := make([]float64, g.Len()), make([]float64, g.Len())
+	for k, s := range perm {
+		colat[k], lon[k] = g.Colat[s/g.NLon], g.Lon(s%g.NLon)
+	}
+	p := NewPoints(lmax, colat, lon)
+	if got := len(p.ringStart) - 1; got != g.NLat() {
+		t.Errorf("%d distinct rings, want %d", got, g.NLat())
+	}
+	f := p.Synthesis(nil, c)
+	for k, s := range perm {
+		if math.Abs(f[k]-want[s]) > tol {
+			t.Fatalf("point %d: %v, grid synthesis %v", k, f[k], want[s])
+		}
+	}
+}

@@ -1141,7 +1141,18 @@ func cmpPrint(w io.Writer, out string, sum *cmpSummary, models []*cmpModel) {
 		fmt.Fprintf(w, "wrote %s/\n", filepath.ToSlash(out))
 	}
 	fmt.Fprintf(w, "  models       %s\n", strings.Join(modelNames(models), ", "))
-	fmt.Fprintf(w, "  layer        %s; lmax %d\n", models[0].layer.Description, res.LMax)
+	same := true
+	for _, m := range models {
+		same = same && m.layer.Description == models[0].layer.Description
+	}
+	if same {
+		fmt.Fprintf(w, "  layer        %s; lmax %d\n", models[0].layer.Description, res.LMax)
+	} else {
+		fmt.Fprintf(w, "  layers       lmax %d\n", res.LMax)
+		for _, m := range models {
+			fmt.Fprintf(w, "    %-18s %s\n", m.name, m.layer.Description)
+		}
+	}
 	fmt.Fprintf(w, "  %-20s %8s %9s %14s %16s\n", "model", "rms (%)", "mean (%)", "slow area (%)", "antipodality")
 	for _, ms := range append(append([]compare.ModelSummary(nil), res.Models...), res.MeanModel) {
 		fmt.Fprintf(w, "  %-20s %8.3f %9.3f %14.1f %16s\n", ms.Name, 100*ms.RMS, 100*ms.Mean, 100*ms.SlowFraction, naOr(ms.HasAntipodality, ms.Antipodality, "%.1f deg"))

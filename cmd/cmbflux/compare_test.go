@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -392,5 +393,20 @@ func TestCompareHelpExample(t *testing.T) {
 	}
 	if _, err := export.Verify("votes"); err != nil {
 		t.Error(err)
+	}
+}
+
+// BenchmarkCompareDemo times a comparison of the demo scenario and its three
+// variants without an output folder (reading, fitting, Analyze).
+func BenchmarkCompareDemo(b *testing.B) {
+	for _, lmax := range []int{8, 16, 32} {
+		b.Run("lmax="+strconv.Itoa(lmax), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if err := run(io.Discard, io.Discard, []string{"compare", "--demo", "--lmax", strconv.Itoa(lmax), "--quiet"}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }

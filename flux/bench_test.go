@@ -3,6 +3,7 @@ package flux
 import (
 	"fmt"
 	"testing"
+	"time"
 
 	"cmbflux/flux/sh"
 )
@@ -20,6 +21,7 @@ func BenchmarkBuild(b *testing.B) {
 		taper := sh.Taper{Kind: sh.CosineTaper, L1: lmax / 2, L2: lmax + 1}
 		b.Run(fmt.Sprintf("lmax=%d", lmax), func(b *testing.B) {
 			b.ReportAllocs()
+			c0 := processCPU()
 			for b.Loop() {
 				p, err := NewPattern(in, &PatternOptions{LMax: lmax, Taper: taper})
 				if err != nil {
@@ -31,6 +33,7 @@ func BenchmarkBuild(b *testing.B) {
 				}
 				_ = r.Outlines()
 			}
+			reportCPU(b, c0)
 		})
 	}
 }
@@ -49,6 +52,7 @@ func BenchmarkQstarSweep(b *testing.B) {
 	for _, n := range []int{1000} {
 		b.Run(fmt.Sprintf("points=%d", n), func(b *testing.B) {
 			b.ReportAllocs()
+			c0 := processCPU()
 			for b.Loop() {
 				for k := range n {
 					if _, err := p.WithQStar(0.5+5.5*float64(k)/float64(n-1), benchRef); err != nil {
@@ -56,6 +60,7 @@ func BenchmarkQstarSweep(b *testing.B) {
 					}
 				}
 			}
+			reportCPU(b, c0)
 		})
 	}
 }
@@ -71,6 +76,7 @@ func BenchmarkQstarSweepOutlines(b *testing.B) {
 	const n = 1000
 	b.Run(fmt.Sprintf("points=%d", n), func(b *testing.B) {
 		b.ReportAllocs()
+		c0 := processCPU()
 		for b.Loop() {
 			for k := range n {
 				r, err := p.WithQStar(0.5+5.5*float64(k)/float64(n-1), benchRef)
@@ -80,5 +86,14 @@ func BenchmarkQstarSweepOutlines(b *testing.B) {
 				_ = r.Outlines()
 			}
 		}
+		reportCPU(b, c0)
 	})
+}
+
+// reportCPU adds the process CPU time per operation since c0 ("cpu-ns/op",
+// garbage collection included), steadier than wall time on a loaded machine.
+func reportCPU(b *testing.B, c0 time.Duration) {
+	if c := processCPU() - c0; c > 0 {
+		b.ReportMetric(float64(c.Nanoseconds())/float64(b.N), "cpu-ns/op")
+	}
 }

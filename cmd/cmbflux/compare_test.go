@@ -410,3 +410,35 @@ func BenchmarkCompareDemo(b *testing.B) {
 		})
 	}
 }
+
+// TestCompareMissingData: a model without data north of 60 degrees is fitted
+// on its valid points only (a NaN taken as data would make every
+// coefficient NaN), it still correlates with the complete model (the cap
+// holds 6.7 % of the sphere, (1 - sin 60)/2), and the warning about the
+// degree its coverage supports names the model.
+func TestCompareMissingData(t *testing.T) {
+	t.Chdir(t.TempDir())
+	data, err := os.ReadFile(demoFile("brindle.txt"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	for _, line := range strings.Split(string(data), "\n") {
+		f := strings.Fields(line)
+		if len(f) == 4 && !strings.HasPrefix(line, "#") && num(t, f[1]) > 60 {
+			f[3] = "NaN"
+			line = strings.Join(f, " ")
+		}
+		b.WriteString(line + "\n")
+	}
+	writeFile(t, "capless.txt", b.String())
+	_, errs := mustCLI(t, "compare", demoFile("brindle.txt"), "capless.txt", "--lmax", "8", "--out", "cmp")
+	if !strings.Contains(errs, "warning: model capless: lmax 8 is above degree") {
+		t.Errorf("stderr %q lacks the coverage warning", errs)
+	}
+	_, rows := readTSV(t, "cmp/correlation.tsv")
+	tot := rows[len(rows)-1]
+	if r := num(t, tot[3]); tot[2] != "total" || !(r > 0.99) {
+		t.Errorf("total row %v, want r > 0.99", tot)
+	}
+}

@@ -209,3 +209,39 @@ func TestFitPoints(t *testing.T) {
 		t.Errorf("2000 points accepted for 2601 coefficients")
 	}
 }
+
+// TestFitRefusesSparseCap: inside a 60-degree polar cap only every 7th
+// longitude has data, 26 per ring, which cannot carry orders m >= 13 there
+// (sampling theorem, common practice): degree 40 is refused by the
+// iterative path, degree 20 passes with the preconditioner in a few tens of
+// iterations and recovers the field.
+func TestFitRefusesSparseCap(t *testing.T) {
+	if testing.Short() {
+		t.Skip("bisection over degrees in -short mode")
+	}
+	g := NewLonLat(90, 180, CellRegistered)
+	mask := func() []bool {
+		v := make([]bool, g.Len())
+		for i, th := range g.Colat {
+			for j := range g.NLon {
+				v[i*g.NLon+j] = th > math.Pi/3 || j%7 == 0
+			}
+		}
+		return v
+	}
+	c := trRandCoeffs(40, 41)
+	f := sampleGrid(c, g)
+	_, _, err := FitGrid(40, g, f, &FitOptions{Valid: mask(), MaxIter: 200})
+	var fe *FitError
+	if !errors.As(err, &fe) || fe.SafeLMax < 13 || fe.SafeLMax >= 40 {
+		t.Fatalf("sparse cap at lmax 40: got %v, want a FitError with a safe degree in [13, 40)", err)
+	}
+	c20 := trRandCoeffs(20, 42)
+	got, rep, err := FitGrid(20, g, sampleGrid(c20, g), &FitOptions{Valid: mask()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := trMaxRel(got, c20); d > 1e-9 || rep.Iter > 100 {
+		t.Errorf("lmax 20: error %.3g after %d iterations", d, rep.Iter)
+	}
+}

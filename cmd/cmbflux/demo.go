@@ -6,7 +6,9 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"math"
 	"strconv"
+	"strings"
 
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
@@ -102,10 +104,11 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 		}
 		figs = append(figs, htmlreport.Figure{Caption: "bc/" + name, MIME: "image/png", Data: data})
 	}
-	sweepFig, err := sweepFigure(pts, sums)
-	if err != nil {
+	var sb bytes.Buffer
+	if err := sweepFigure("demo sweep", "qstar", pts, sums).WritePNG(&sb); err != nil {
 		return err
 	}
+	sweepFig := htmlreport.Figure{Caption: "Sweep: flux minimum and area fractions against q*, one curve per lmax.", MIME: "image/png", Data: sb.Bytes()}
 	rows := [][]string{}
 	for i, pt := range pts {
 		s := sums[i]
@@ -177,38 +180,80 @@ func prefixed(p string, s []string) []string {
 	return out
 }
 
-// sweepFigure draws q_min and the negative and sub-adiabatic areas against
-// q*, one curve per lmax.
-func sweepFigure(pts []config.Point, sums []*Summary) (htmlreport.Figure, error) {
-	byL := map[string]int{}
+// sweepFigure draws q_min and the negative and sub-adiabatic area
+// fractions against the varied parameter x, one curve per combination of the
+// other varied parameters. It returns nil when x is not varied or not
+// numeric.
+func sweepFigure(title, x string, pts []config.Point, sums []*Summary) *figure.Sweep {
+	series := map[string]int{}
 	var order []string
 	for _, pt := range pts {
-		l := pt.Set["lmax"].Raw
-		if _, ok := byL[l]; !ok {
-			byL[l] = len(order)
-			order = append(order, l)
+		var parts []string
+		found := false
+		for _, kv := range pt.Varied {
+			if kv.Key == x {
+				found = true
+				continue
+			}
+			parts = append(parts, kv.Key+" "+kv.Raw)
+		}
+		if !found {
+			return nil
+		}
+		label := strings.Join(parts, ", ")
+		if label == "" {
+			label = x
+		}
+		if _, ok := series[label]; !ok {
+			series[label] = len(order)
+			order = append(order, label)
 		}
 	}
-	panels := []figure.SweepPanel{{YLabel: "q_min (mW/m²)"}, {YLabel: "negative area fraction", Fraction: true}, {YLabel: "sub-adiabatic area fraction", Fraction: true}}
+	panels := []figure.SweepPanel{{YLabel: "q_min (mW/m²)"}, {YLabel: "negative area fraction", Fraction: true}}
+	hasAd := len(sums) > 0 && sums[0].AreaSubadiabatic != nil
+	if hasAd {
+		panels = append(panels, figure.SweepPanel{YLabel: "sub-adiabatic area fraction", Fraction: true})
+	}
 	for p := range panels {
 		panels[p].Series = make([]figure.XYSeries, len(order))
 		for i, l := range order {
-			panels[p].Series[i].Label = "lmax " + l
+			panels[p].Series[i].Label = l
 		}
 	}
 	for i, pt := range pts {
-		k := byL[pt.Set["lmax"].Raw]
-		x, _ := strconv.ParseFloat(pt.Set["qstar"].Raw, 64)
-		ys := []float64{*sums[i].QMin, sums[i].AreaNegative, *sums[i].AreaSubadiabatic}
+		s := sums[i]
+		if s.QMin == nil {
+			return nil
+		}
+		var label []string
+		xv := math.NaN()
+		for _, kv := range pt.Varied {
+			if kv.Key == x {
+				v, err := strconv.ParseFloat(kv.Raw, 64)
+				if err != nil {
+					return nil
+				}
+				xv = v
+			} else {
+				label = append(label, kv.Key+" "+kv.Raw)
+			}
+		}
+		l := strings.Join(label, ", ")
+		if l == "" {
+			l = x
+		}
+		k := series[l]
+		ys := []float64{*s.QMin, s.AreaNegative}
+		if hasAd {
+			ys = append(ys, math.NaN())
+			if s.AreaSubadiabatic != nil {
+				ys[2] = *s.AreaSubadiabatic
+			}
+		}
 		for p := range panels {
-			panels[p].Series[k].X = append(panels[p].Series[k].X, x)
+			panels[p].Series[k].X = append(panels[p].Series[k].X, xv)
 			panels[p].Series[k].Y = append(panels[p].Series[k].Y, ys[p])
 		}
 	}
-	f := &figure.Sweep{Title: "demo sweep", XLabel: "q*", Panels: panels}
-	var b bytes.Buffer
-	if err := f.WritePNG(&b); err != nil {
-		return htmlreport.Figure{}, err
-	}
-	return htmlreport.Figure{Caption: "Sweep: flux minimum and area fractions against q*.", MIME: "image/png", Data: b.Bytes()}, nil
+	return &figure.Sweep{Title: title, XLabel: x, Panels: panels}
 }

@@ -457,5 +457,13 @@ func writeSweepSummary(out string, sw *config.Sweep, pts []config.Point) (bool, 
 		cw.Flush()
 		return cw.Error()
 	})
-	return err == nil, err
+	if err != nil {
+		return false, err
+	}
+	if sf := sweepFigure("sweep "+filepath.Base(sw.File), "qstar", pts, sums); sf != nil {
+		if err := outdir.Write(filepath.Join(out, "sweep.png"), sf.WritePNG); err != nil {
+			return false, err
+		}
+	}
+	return true, nil
 }

@@ -7,8 +7,9 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// gridLines gives a band-limited field exactly along the lines of a
-// denseGrid, for contour.Lines. A field of degree L restricted to a great
+// gridLines holds a band-limited field exactly along the lines of a
+// denseGrid, for the second derivatives that contour's quintic crossings
+// use (it could also serve as a contour.Lines). A field of degree L restricted to a great
 // circle is a trigonometric polynomial of degree L in the angle along it
 // (the harmonics are homogeneous polynomials of degree <= L in x, y, z,
 // common practice), and along a parallel it is the ring's Fourier series.
@@ -82,35 +83,39 @@ func newGridLines(g *denseGrid, l int) (*gridLines, error) {
 	return gl, nil
 }
 
-// trig evaluates sum_k a_k cos(k x) + b_k sin(k x) and its derivative by
-// rotating (cos kx, sin kx) one step at a time.
-func trig(a, b []float64, x float64) (f, df float64) {
+// trig2 returns the second derivative of sum_k a_k cos(k x) + b_k sin(k x).
+func trig2(a, b []float64, x float64) float64 {
 	s1, c1 := math.Sincos(x)
 	ck, sk := 1.0, 0.0
-	f = a[0]
+	d2 := 0.0
 	for k := 1; k < len(a); k++ {
 		ck, sk = ck*c1-sk*s1, sk*c1+ck*s1
 		fk := float64(k)
-		f += a[k]*ck + b[k]*sk
-		df += fk * (b[k]*ck - a[k]*sk)
+		d2 -= fk * fk * (a[k]*ck + b[k]*sk)
 	}
-	return f, df
+	return d2
 }
 
-// Meridian returns the field and df/dlat (per degree) on column j.
-func (gl *gridLines) Meridian(j int, lat float64) (float64, float64) {
-	th := (90 - lat) / rad2deg
-	half := gl.g.nlon / 2
-	if j < half {
-		f, d := trig(gl.alpha[j], gl.beta[j], th)
-		return f, -d / rad2deg
+// secondDerivatives returns d2f/dlon2 and d2f/dlat2 (per degree squared) at
+// the grid nodes, from the ring and great-circle series.
+func (gl *gridLines) secondDerivatives() (dlon2, dlat2 []float64) {
+	g := gl.g
+	n := len(g.v)
+	dlon2, dlat2 = make([]float64, n), make([]float64, n)
+	half := g.nlon / 2
+	const r2 = rad2deg * rad2deg
+	for i, th := range g.colat {
+		for j := 0; j < g.nlon; j++ {
+			k := i*g.nlon + j
+			if i > 0 && i < len(g.colat)-1 {
+				dlon2[k] = trig2(g.ringA[i], g.ringB[i], 2*math.Pi*float64(j)/float64(g.nlon)) / r2
+			}
+			if j < half {
+				dlat2[k] = trig2(gl.alpha[j], gl.beta[j], th) / r2
+			} else {
+				dlat2[k] = trig2(gl.alpha[j-half], gl.beta[j-half], 2*math.Pi-th) / r2
+			}
+		}
 	}
-	f, d := trig(gl.alpha[j-half], gl.beta[j-half], 2*math.Pi-th)
-	return f, d / rad2deg
-}
-
-// Parallel returns the field and df/dlon (per degree) on row i.
-func (gl *gridLines) Parallel(i int, lon float64) (float64, float64) {
-	f, d := trig(gl.g.ringA[i], gl.g.ringB[i], lon/rad2deg)
-	return f, d / rad2deg
+	return dlon2, dlat2
 }

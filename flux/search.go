@@ -131,9 +131,9 @@ func newDenseGrid(c *sh.Coeffs, nr int, deriv bool) *denseGrid {
 }
 
 // surface returns the grid of the expansion c as a contour.Surface
-// (latitudes and derivatives per degree), with the exact field along its
-// grid lines (gridLines) so that contour crossings carry no interpolation
-// error.
+// (latitudes and derivatives per degree), with second derivatives along the
+// grid lines from their exact Fourier series (gridLines), so that contour
+// crossings come from quintic Hermite interpolants (error O(h^6)).
 func (g *denseGrid) surface(c *sh.Coeffs) (*contour.Surface, error) {
 	f := contour.Field{NLon: g.nlon, Values: g.v}
 	if g.ringA != nil {
@@ -141,7 +141,7 @@ func (g *denseGrid) surface(c *sh.Coeffs) (*contour.Surface, error) {
 		if err != nil {
 			return nil, err
 		}
-		f.Lines = lines
+		f.DLon2, f.DLat2 = lines.secondDerivatives()
 	}
 	f.Lat = make([]float64, len(g.colat))
 	for i, th := range g.colat {

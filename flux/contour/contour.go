@@ -31,6 +31,11 @@ type Field struct {
 	// interpolant of each grid edge (error O(h^4)) instead of on the linear
 	// interpolant (error O(h^2)).
 	DLon, DLat []float64
+	// DLon2 and DLat2 optionally hold the second derivatives with respect
+	// to longitude and latitude, per degree squared, beside DLon and DLat.
+	// Crossings are then found on the quintic Hermite interpolant of each
+	// edge (error O(h^6)).
+	DLon2, DLat2 []float64
 	// Lines, when set with the derivatives, gives the field exactly along
 	// the grid lines; crossings are then located on it (to rounding) rather
 	// than on the interpolants, and the interpolants only screen edges for
@@ -61,7 +66,9 @@ type Surface struct {
 	v      []float64 // values, (len(lat))*n
 	dv     []float64 // derivative per degree along longitude (nil if absent)
 	dp     []float64 // derivative per degree along latitude (nil if absent)
-	herm   []bool    // per band: Hermite crossings allowed on meridian edges
+	d2v    []float64 // second derivatives per degree^2 (nil if absent)
+	d2p    []float64
+	herm   []bool // per band: Hermite crossings allowed on meridian edges
 	sinLat []float64
 	cosLat []float64
 	sinLon []float64
@@ -100,6 +107,10 @@ func NewSurface(f Field) (*Surface, error) {
 	herm := f.DLon != nil && f.DLat != nil
 	if herm && (len(f.DLon) != nr*n || len(f.DLat) != nr*n) {
 		return nil, fmt.Errorf("%w: derivative arrays must have %d values like Values", ErrField, nr*n)
+	}
+	quint := herm && f.DLon2 != nil && f.DLat2 != nil
+	if quint && (len(f.DLon2) != nr*n || len(f.DLat2) != nr*n) {
+		return nil, fmt.Errorf("%w: second-derivative arrays must have %d values like Values", ErrField, nr*n)
 	}
 	for i, la := range f.Lat {
 		if !(la >= -90 && la <= 90) {
@@ -144,6 +155,10 @@ func NewSurface(f Field) (*Surface, error) {
 					s.dv = append(s.dv, 0)
 					s.dp = append(s.dp, 0)
 				}
+				if quint {
+					s.d2v = append(s.d2v, 0)
+					s.d2p = append(s.d2p, 0)
+				}
 			}
 			return
 		}
@@ -157,12 +172,19 @@ func NewSurface(f Field) (*Surface, error) {
 			if herm {
 				copy(s.dp[len(s.dp)-n:], f.DLat[src*n:(src+1)*n])
 			}
+			if quint {
+				copy(s.d2p[len(s.d2p)-n:], f.DLat2[src*n:(src+1)*n])
+			}
 			return
 		}
 		s.v = append(s.v, f.Values[src*n:(src+1)*n]...)
 		if herm {
 			s.dv = append(s.dv, f.DLon[src*n:(src+1)*n]...)
 			s.dp = append(s.dp, f.DLat[src*n:(src+1)*n]...)
+		}
+		if quint {
+			s.d2v = append(s.d2v, f.DLon2[src*n:(src+1)*n]...)
+			s.d2p = append(s.d2p, f.DLat2[src*n:(src+1)*n]...)
 		}
 	}
 	northAdded := f.Lat[order[0]] < 90-poleTol
@@ -411,10 +433,78 @@ func exactCut(at func(t float64) (f, df float64), n int, ts [2]float64, split fl
 // rootTol is the tolerance in edge parameter of the interpolant's roots:
 // loose when Lines refines them, to rounding otherwise.
 func (s *Surface) rootTol() float64 {
-	if s.lines != nil {
-		return 1e-5 // one exact Newton step then leaves about 1e-10
+	if s.lines != nil || s.d2v != nil {
+		return 1e-5 // refined afterwards (quintic or exact lines)
 	}
 	return 1e-12
+}
+
+// quintic holds the polynomial coefficients c0..c5 of the quintic Hermite
+// interpolant of (f, f', f”) at both ends of [0, 1]:
+//
+//	c3 = -10 f0 - 6 d0 - 3/2 s0 + 10 f1 - 4 d1 + 1/2 s1
+//	c4 =  15 f0 + 8 d0 + 3/2 s0 - 15 f1 + 7 d1 - s1
+//	c5 =  -6 f0 - 3 d0 - 1/2 s0 +  6 f1 - 3 d1 + 1/2 s1
+//
+// (c0 = f0, c1 = d0, c2 = s0/2), from the basis functions
+// 1 - 10t^3 + 15t^4 - 6t^5, t - 6t^3 + 8t^4 - 3t^5, (t^2 - 3t^3 + 3t^4 - t^5)/2
+// and their mirror images (common practice).
+type quintic [6]float64
+
+func newQuintic(f0, f1, d0, d1, s0, s1 float64) quintic {
+	return quintic{f0, d0, s0 / 2,
+		-10*f0 - 6*d0 - 1.5*s0 + 10*f1 - 4*d1 + 0.5*s1,
+		15*f0 + 8*d0 + 1.5*s0 - 15*f1 + 7*d1 - s1,
+		-6*f0 - 3*d0 - 0.5*s0 + 6*f1 - 3*d1 + 0.5*s1}
+}
+
+func (q *quintic) at(t float64) (p, dp float64) {
+	p = q[0] + t*(q[1]+t*(q[2]+t*(q[3]+t*(q[4]+t*q[5]))))
+	dp = q[1] + t*(2*q[2]+t*(3*q[3]+t*(4*q[4]+t*5*q[5])))
+	return p, dp
+}
+
+// root returns the zero of q in [lo, hi], where q has opposite signs (or
+// zero) at the ends: Newton's method from t safeguarded by bisection.
+func (q *quintic) root(t, lo, hi float64) float64 {
+	plo, _ := q.at(lo)
+	up := plo < 0
+	for range 30 {
+		p, dp := q.at(t)
+		if p == 0 {
+			return t
+		}
+		if (p < 0) == up {
+			lo = t
+		} else {
+			hi = t
+		}
+		nt := t - p/dp
+		if !(nt >= lo && nt <= hi) {
+			nt = 0.5 * (lo + hi)
+		}
+		if math.Abs(nt-t) < 1e-12 {
+			return nt
+		}
+		t = nt
+	}
+	return t
+}
+
+// cut turns the cubic's roots ts (n of them, a dip split at split) into
+// roots of the quintic; a dip the quintic does not make is dropped.
+func (q *quintic) cut(n int, ts [2]float64, split float64) (int, [2]float64) {
+	switch n {
+	case 1:
+		ts[0] = q.root(ts[0], 0, 1)
+	case 2:
+		fs, _ := q.at(split)
+		if (fs < 0) == (q[0] < 0) {
+			return 0, ts
+		}
+		ts[0], ts[1] = q.root(ts[0], 0, split), q.root(ts[1], split, 1)
+	}
+	return n, ts
 }
 
 // meridianAt returns the crossing at parameter t on the edge of column j
@@ -475,6 +565,11 @@ func (s *Surface) meridianCut(i, j int, c float64) edgeCut {
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
 	n, ts, split := edgeRoots(f0, f1, d0, d1, s.herm[i], s.rootTol())
+	if s.d2p != nil && s.herm[i] && n > 0 {
+		dl := s.lat[i+1] - s.lat[i]
+		q := newQuintic(f0, f1, d0, d1, s.d2p[k0]*dl*dl, s.d2p[k1]*dl*dl)
+		n, ts = q.cut(n, ts, split)
+	}
 	e.n = n
 	if s.lines != nil && n > 0 {
 		dl := s.lat[i+1] - s.lat[i]
@@ -502,6 +597,10 @@ func (s *Surface) parallelCut(i, j int, c float64) edgeCut {
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
 	n, ts, split := edgeRoots(f0, f1, d0, d1, herm, s.rootTol())
+	if s.d2v != nil && herm && n > 0 {
+		q := newQuintic(f0, f1, d0, d1, s.d2v[k0]*s.dlon*s.dlon, s.d2v[k1]*s.dlon*s.dlon)
+		n, ts = q.cut(n, ts, split)
+	}
 	e.n = n
 	if s.lines != nil && herm && n > 0 && s.src[i] >= 0 {
 		r := s.src[i]

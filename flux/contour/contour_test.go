@@ -307,6 +307,19 @@ func TestThinBandBetweenRows(t *testing.T) {
 	if got := s.AreaBelow(e * e); math.Abs(got-want)/(4*math.Pi) > 1e-3 {
 		t.Errorf("interpolated: band area %g, want %g", got, want)
 	}
+	// Second derivatives: quintic crossings, error O(h^6).
+	for _, la := range f.Lat {
+		z, c := math.Sin(la*deg), math.Cos(la*deg)
+		for range nlon {
+			f.DLon2 = append(f.DLon2, 0)
+			f.DLat2 = append(f.DLat2, (2*c*c-2*(z-z0)*z)*deg*deg)
+		}
+	}
+	s, _ = NewSurface(f)
+	if got := s.AreaBelow(e * e); math.Abs(got-want)/(4*math.Pi) > 1e-6 {
+		t.Errorf("quintic: band area %.12g, want %.12g", got, want)
+	}
+	f.DLon2, f.DLat2 = nil, nil
 	f.Lines = bandLines{z0, f.Lat}
 	s, _ = NewSurface(f)
 	if got := s.AreaBelow(e * e); math.Abs(got-want)/(4*math.Pi) > 1e-9 {

@@ -5,8 +5,8 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"path/filepath"
 	"math"
+	"path/filepath"
 	"strconv"
 	"strings"
 

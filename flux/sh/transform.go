@@ -66,10 +66,12 @@ package sh
 // with the pointwise evaluator (Coeffs.Evaluate) to 1e-12 at lmax 700 and
 // 2e-11 at lmax 2700.
 //
-// Speed. One scalar core does about 4 multiplications per (l, m, ring
-// pair) at roughly 3 cycles; the longitude FFTs (fft.go) take about a tenth
-// of the time at lmax 511. Measured ratios to libsharp are in the
-// benchmarks' documentation (transform_bench_test.go).
+// Speed. One scalar core does four multiplications per (l, m, ring pair)
+// at about 3 cycles; the longitude FFTs (fft.go) take under a tenth of the
+// time at lmax 511. Against libsharp 1.0 (8-wide vectors) one call takes
+// 2-4 times as long, more at higher degree; the measured ratios are beside
+// the benchmarks (transform_bench_test.go). Workers > 1 splits a call by
+// order and by ring.
 
 import (
 	"fmt"

@@ -13,6 +13,14 @@
 // Phys. Earth Planet. Inter. 190-191; Amit et al. 2015, Prog. Earth Planet.
 // Sci. 2, 26).
 //
+// Use. NewPattern (or Ideal for harmonics) does the work that does not
+// depend on the amplitude: truncation, taper, the extremum search on a
+// Gauss-Legendre grid with Newton refinement, the contour surface. Then
+// WithQStar, WithMeasure or WithPhysical build a Result cheaply for each
+// amplitude, with Coeffs/At/OnGrid for every Quantity, Diagnostics,
+// Outlines and Warnings. Rotate, Blend, SpinSequence and BlendSequence make
+// time sequences.
+//
 // Inside the package angles are colatitude and east longitude in radians,
 // units SI (W/m^2, K, m, W); Diagnostics, at the edge, uses degrees,
 // mW/m^2 and TW. Coefficients are sh.Coeffs in sh.Canonical.

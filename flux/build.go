@@ -314,3 +314,35 @@ func (r *Result) OnGrid(q Quantity, g *sh.Grid) ([]float64, error) {
 	}
 	return sh.NewTransform(c.LMax, g).Synthesis(nil, c), nil
 }
+
+// Sweep builds one Result per value of the measure m (WithMeasure), in
+// order, using up to workers goroutines (workers < 1 means one). The
+// Pattern is shared; each point costs a few contour passes.
+func (p *Pattern) Sweep(m Measure, values []float64, ref Reference, workers int) ([]*Result, error) {
+	out := make([]*Result, len(values))
+	errs := make([]error, len(values))
+	workers = max(1, min(workers, len(values)))
+	next := make(chan int)
+	done := make(chan struct{})
+	for range workers {
+		go func() {
+			for k := range next {
+				out[k], errs[k] = p.WithMeasure(m, values[k], ref)
+			}
+			done <- struct{}{}
+		}()
+	}
+	for k := range values {
+		next <- k
+	}
+	close(next)
+	for range workers {
+		<-done
+	}
+	for k, err := range errs {
+		if err != nil {
+			return nil, fmt.Errorf("sweep point %d (%s = %g): %w", k, m, values[k], err)
+		}
+	}
+	return out, nil
+}

@@ -285,3 +285,22 @@ func TestTaper(t *testing.T) {
 		t.Error("a taper and custom weights together must be refused")
 	}
 }
+
+func TestSweep(t *testing.T) {
+	p, _ := NewPattern(randomDlnVs(4, 10), nil)
+	ref := Reference{QMean: 0.06, QAd: 0.04}
+	vals := []float64{0.5, 1, 2, 3, 5, 8}
+	rs, err := p.Sweep(PeakToPeak, vals, ref, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, v := range vals {
+		want, _ := p.WithQStar(v, ref)
+		if rs[k].Diagnostics.QStar != want.Diagnostics.QStar || rs[k].Diagnostics.AreaFractionNegative != want.Diagnostics.AreaFractionNegative {
+			t.Errorf("point %d differs from the serial build", k)
+		}
+	}
+	if _, err := p.Sweep(PeakToPeak, []float64{1, -1}, ref, 2); err == nil {
+		t.Error("a negative q* in a sweep must be refused")
+	}
+}

@@ -162,14 +162,17 @@ func (g *plm) reset(lmax int, colat float64) {
 }
 
 // setScale sets the output multipliers of column m from its exponent. The
-// multipliers are exact powers of two, so the product p*lo*hi is rounded once
-// whenever it is representable.
+// multipliers are exact powers of two and normal numbers, so the product
+// p*lo*hi is rounded once. A column whose values are all below the smallest
+// normal double (|p| <= 2^rescaleExp and 2^(e+rescaleExp) < 2^-1022) gets
+// zero multipliers: such values are returned as 0 rather than as subnormal
+// numbers, whose arithmetic is slow on common processors.
 func (g *plm) setScale(m int) {
 	e := g.ex[m]
 	switch {
 	case e >= -1022:
 		g.lo[m], g.hi[m] = 1, math.Ldexp(1, e)
-	case e >= -1074-rescaleExp:
+	case e >= -1022-rescaleExp:
 		g.lo[m], g.hi[m] = rescaleSmall, math.Ldexp(1, e+rescaleExp)
 	default:
 		g.lo[m], g.hi[m] = 0, 0
@@ -419,11 +422,13 @@ func normRow(f []float64, e []int, l int, conv Convention) {
 //
 // Any finite colat is accepted; sin(colat) < 0 continues the functions
 // through the pole. The functions are computed by a scaled forward column
-// recursion (Holmes & Featherstone 2002) with per-order binary exponents, so
-// no value overflows at any degree and values below the smallest double
-// underflow to zero; the relative error against 50-digit references is below
-// 1e-11 up to degree 2700, including within 1e-6 rad of the poles (see the
-// tests).
+// recursion (Holmes & Featherstone 2002) with per-order binary exponents and,
+// within 60 degrees of the poles, a form of the recursion in 1 - |cos colat|
+// (see the comment at the top of legendre.go). No value overflows at any
+// degree; values below the smallest normal double (2.2e-308) come out as 0
+// or a subnormal number. Against a 60-digit mpmath table (degrees 0-2700,
+// colatitudes 1e-6 to pi - 1e-6, all normalizations) the error is below
+// 3e-13 of the local amplitude sqrt(P^2 + (P'/(l+1/2))^2) (tested at 1e-12).
 //
 // Legendre panics if lmax < 0, if colat is not finite, or if
 // conv.CheckDegree(lmax) reports an error (Unnormalized beyond

@@ -170,14 +170,6 @@ func TestGoldenCommands(t *testing.T) {
 		{name: "plot-demo", args: []string{"plot", "--demo", "--out", "m.png", "--spectrum", "s.svg"}},
 		{name: "plot-bad-ext", args: []string{"plot", "--demo", "--out", "m.pdf"}, code: 2},
 		{name: "demo", args: []string{"demo", "--out", "d"}},
-		{name: "compare-demo", args: []string{"compare", "demo", "turned/field.nc", "--lmax", "6"},
-			setup: func(t *testing.T) {
-				if _, e, code := cli([]string{"build", "--demo", "--quantity", "dvs", "--rotate", "30", "--formats", "nc", "--out", "turned"}, ""); code != 0 {
-					t.Fatal(e)
-				}
-			}},
-		{name: "compare-one", args: []string{"compare", "demo"}, code: 2},
-		{name: "compare-help", args: []string{"compare", "--help"}},
 		{name: "demo-help", args: []string{"demo", "--help"}},
 		{name: "inspect-help", args: []string{"inspect", "--help"}},
 		{name: "convert-help", args: []string{"convert", "--help"}},

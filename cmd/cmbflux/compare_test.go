@@ -102,6 +102,8 @@ func TestGoldenCompare(t *testing.T) {
 		{name: "compare-qstar-alone", args: []string{"compare", "--demo", "--qstar", "1", "--out", "cmp"}, code: 2},
 		{name: "compare-consensus-no-out", args: []string{"compare", "--demo", "--consensus", "mean", "--qstar", "1", "--qmean", "80"}, code: 2},
 		{name: "compare-bad-consensus", args: []string{"compare", "--demo", "--consensus", "median", "--out", "cmp"}, code: 2},
+		{name: "compare-usage-help", args: []string{"compare", "--help"}},
+		{name: "compare-too-few", args: []string{"compare", "demo"}, code: 2},
 		{name: "compare-names-count", args: []string{"compare", "--demo", "--names", "a,b"}, code: 2},
 		{name: "compare-missing", args: []string{"compare", "--demo", "nothing.nc", "--out", "cmp"}, code: 2},
 		{name: "compare-exists", args: []string{"compare", "--demo", "--out", "cmp"}, code: 2,

@@ -127,6 +127,9 @@ func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 	}
 	raw := v.(*sh.Coeffs)
 	key := expKey + fmt.Sprintf(" taper=%s rotate=%g", sp.Taper, sp.Rotate)
+	if sp.QStarOnGrid {
+		key += " qstar-on=" + sp.Grid
+	}
 	v, err = c.get(key, func() (any, error) {
 		tp, err := parseTaper(sp.Taper)
 		if err != nil {
@@ -139,6 +142,15 @@ func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 		fp, err := flux.NewPattern(d, &flux.PatternOptions{LMax: sp.LMax, Taper: tp, ResolvedLMax: src.safe.Lmax})
 		if err != nil {
 			return nil, wrapInput(src.name, err)
+		}
+		if sp.QStarOnGrid {
+			g, err := parseGrid(sp.Grid)
+			if err != nil {
+				return nil, err
+			}
+			if fp, err = fp.MeasuredOn(flux.SampleGridOf(sp.Grid, g)); err != nil {
+				return nil, &config.Error{Key: "qstar-on", Err: err}
+			}
 		}
 		return &pattern{flux: fp, mean: d.C[0] / math.Sqrt(4*math.Pi)}, nil
 	})
@@ -373,6 +385,9 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 		CondonShortley: conv.CondonShortley, Form: sp.Form, OutputGrid: sp.Grid,
 		Input: src.name, InputSHA256: src.sha256, Layer: src.layer.Description, Mode: "ratio",
 		QStarDefinition: "(q_max - q_min) / q_mean of the total heat flux, extrema of the continuous band-limited field",
+	}
+	if sp.QStarOnGrid {
+		s.QStarDefinition = "(q_max - q_min) / q_mean of the total heat flux, extrema on the points of grid " + sp.Grid
 	}
 	if sp.Physical {
 		s.Mode = "physical"

@@ -285,3 +285,24 @@ func TestRotateMovesExtremaEast(t *testing.T) {
 		t.Errorf("rotation changed the values: %g vs %g", *a.QMax, *b.QMax)
 	}
 }
+
+func TestQStarOnGrid(t *testing.T) {
+	t.Chdir(t.TempDir())
+	mustCLI(t, "build", "--demo", "--qstar", "2", "--qmean", "80", "--lmax", "10", "--qstar-on", "grid", "--grid", "gauss:12", "--out", "bc")
+	s := loadSummary(t, "bc")
+	c := readCanonical(t, "bc/coefficients.txt")
+	// On the grid points the written field has q* = 2 exactly; the continuous
+	// field between them reaches further (and the summary says so).
+	g := sh.NewGaussLegendre(12, 24)
+	vals := sh.NewTransform(c.LMax, g).Synthesis(nil, c)
+	qmax, qmin := math.Inf(-1), math.Inf(1)
+	for _, v := range vals {
+		qmax, qmin = math.Max(qmax, v), math.Min(qmin, v)
+	}
+	if got := (qmax - qmin) / 80; math.Abs(got-2) > 1e-9 {
+		t.Errorf("q* on the grid points = %.12g, want 2", got)
+	}
+	if !(s.QStarContinuous > 2) || !strings.Contains(s.QStarDefinition, "gauss:12") {
+		t.Errorf("continuous q* %g, definition %q", s.QStarContinuous, s.QStarDefinition)
+	}
+}

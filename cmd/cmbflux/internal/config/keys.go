@@ -51,6 +51,7 @@ var BuildKeys = []Key{
 	{Name: "taper", Kind: String, Arg: "SPEC", Group: "Pattern", Usage: "none, cut:L, cos:L1:L2 (raised-cosine roll-off from degree L1 to L2) or gauss:DEG (Gaussian, half-width in degrees of arc)"},
 	{Name: "rotate", Kind: Float, Arg: "DEG", Group: "Pattern", Usage: "turn the pattern eastward about the rotation axis by DEG degrees"},
 	{Name: "qstar", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "heterogeneity q* = (q_max - q_min) / q_mean of the output field"},
+	{Name: "qstar-on", Kind: String, Arg: "WHERE", Group: "Amplitude", Usage: "where q_max and q_min are taken: continuous (the band-limited field, default) or grid (the --grid points, for codes that see only a grid)"},
 	{Name: "qmean", Kind: Float, Arg: "MW_M2", Group: "Amplitude", Usage: "mean CMB heat flux (mW/m^2)"},
 	{Name: "heatflow", Kind: Float, Arg: "TW", Group: "Amplitude", Usage: "total CMB heat flow (TW), instead of --qmean"},
 	{Name: "qad", Kind: Float, Arg: "MW_M2", Group: "Amplitude", Usage: "heat flux conducted down the core adiabat (mW/m^2)"},

@@ -40,10 +40,13 @@ type Spec struct {
 
 	QStar    float64
 	HasQStar bool
-	QMean    float64 // W/m^2; used when HasQMean
-	HasQMean bool
-	QAd      float64 // W/m^2; used when HasQAd
-	HasQAd   bool
+	// QStarOnGrid measures q* on the Grid points instead of the continuous
+	// field.
+	QStarOnGrid bool
+	QMean       float64 // W/m^2; used when HasQMean
+	HasQMean    bool
+	QAd         float64 // W/m^2; used when HasQAd
+	HasQAd      bool
 
 	Physical     bool
 	DlnVsDT      float64 // per K
@@ -157,6 +160,15 @@ func Resolve(s Set) (*Spec, error) {
 			return nil, bad("qstar", "%g is negative; q* = (q_max - q_min)/q_mean is at least 0", q)
 		}
 		sp.QStar, sp.HasQStar = q, true
+	}
+	if v, ok := s["qstar-on"]; ok {
+		switch v.Raw {
+		case "continuous":
+		case "grid":
+			sp.QStarOnGrid = true
+		default:
+			return nil, bad("qstar-on", "%q is not continuous or grid", v.Raw)
+		}
 	}
 	if q, ok := f("qmean"); ok {
 		if has("heatflow") {

@@ -77,8 +77,10 @@ func (e *Evaluator) sums(colat float64, grad bool) {
 func (e *Evaluator) Value(colat, lon float64) float64 {
 	e.sums(colat, false)
 	f := e.a[0]
+	var t trig
+	t.start(lon)
 	for m := 1; m <= e.c.LMax; m++ {
-		s, c := math.Sincos(float64(m) * lon)
+		c, s := t.next(m)
 		f += e.a[m]*c + e.b[m]*s
 	}
 	return f
@@ -92,9 +94,11 @@ func (e *Evaluator) Value(colat, lon float64) float64 {
 func (e *Evaluator) Grad(colat, lon float64) (f, dfdcolat, dfdlon float64) {
 	e.sums(colat, true)
 	f, dfdcolat = e.a[0], e.da[0]
+	var t trig
+	t.start(lon)
 	for m := 1; m <= e.c.LMax; m++ {
 		fm := float64(m)
-		s, c := math.Sincos(fm * lon)
+		c, s := t.next(m)
 		f += e.a[m]*c + e.b[m]*s
 		dfdcolat += e.da[m]*c + e.db[m]*s
 		dfdlon += fm * (e.b[m]*c - e.a[m]*s)
@@ -115,4 +119,30 @@ func (c *Coeffs) Evaluate(colat, lon float64) float64 {
 // Evaluator.Grad.
 func (c *Coeffs) EvaluateGrad(colat, lon float64) (f, dfdcolat, dfdlon float64) {
 	return NewEvaluator(c).Grad(colat, lon)
+}
+
+// trig produces cos(m lon), sin(m lon) for m = 1, 2, ... by the angle-sum
+// recurrence, restarted from math.Sincos every trigReseed orders so that the
+// rounding error stays within a few ulp (it grows about linearly between
+// restarts).
+type trig struct {
+	lon, c1, s1, c, s float64
+}
+
+const trigReseed = 16
+
+func (t *trig) start(lon float64) {
+	t.lon = lon
+	t.s1, t.c1 = math.Sincos(lon)
+	t.c, t.s = 1, 0
+}
+
+// next returns cos(m lon), sin(m lon); m must increase by one per call from 1.
+func (t *trig) next(m int) (c, s float64) {
+	if m%trigReseed == 0 {
+		t.s, t.c = math.Sincos(float64(m) * t.lon)
+	} else {
+		t.c, t.s = t.c*t.c1-t.s*t.s1, t.s*t.c1+t.c*t.s1
+	}
+	return t.c, t.s
 }

@@ -430,7 +430,8 @@ func normRow(f []float64, e []int, l int, conv Convention) {
 // colatitudes 1e-6 to pi - 1e-6, all normalizations) the error is below
 // 3e-13 of the local amplitude sqrt(P^2 + (P'/(l+1/2))^2) (tested at 1e-12).
 //
-// Legendre panics if lmax < 0, if colat is not finite, or if
+// Legendre is safe for concurrent use. It panics if lmax < 0, if colat is
+// not finite, or if
 // conv.CheckDegree(lmax) reports an error (Unnormalized beyond
 // UnnormalizedMaxDegree); check first when lmax comes from input.
 func Legendre(dst []float64, lmax int, colat float64, conv Convention) []float64 {

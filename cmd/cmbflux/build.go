@@ -5,8 +5,10 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"path/filepath"
 	"strings"
+	"syscall"
 
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
@@ -88,8 +90,15 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 	if err := validateSpec(sp); err != nil {
 		return err
 	}
-	sum, err := buildFolder(context.Background(), newCache(), sp, sp.Out, o.force, false, set)
+	// Ctrl-C or SIGTERM stops the build between stages and removes the
+	// half-written folder.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	sum, err := buildFolder(ctx, newCache(), sp, sp.Out, o.force, false, set)
 	if err != nil {
+		if ctx.Err() != nil {
+			return fmt.Errorf("interrupted; nothing was written to %s", sp.Out)
+		}
 		return err
 	}
 	for _, w := range sum.Warnings {

@@ -431,9 +431,8 @@ func normRow(f []float64, e []int, l int, conv Convention) {
 // 3e-13 of the local amplitude sqrt(P^2 + (P'/(l+1/2))^2) (tested at 1e-12).
 //
 // Legendre is safe for concurrent use. It panics if lmax < 0, if colat is
-// not finite, or if
-// conv.CheckDegree(lmax) reports an error (Unnormalized beyond
-// UnnormalizedMaxDegree); check first when lmax comes from input.
+// not finite, or if conv.CheckDegree(lmax) reports an error (Unnormalized
+// beyond UnnormalizedMaxDegree); check first when lmax comes from input.
 func Legendre(dst []float64, lmax int, colat float64, conv Convention) []float64 {
 	p, _ := legendre(dst, nil, lmax, colat, conv, false)
 	return p

@@ -61,3 +61,16 @@ func (c *Coeffs) RMS(lmin, lmax int) float64 {
 	}
 	return math.Sqrt(t / (4 * math.Pi))
 }
+
+// MeanSquareSpectrum returns S_l / (4 pi), l = 0..LMax, the contribution of
+// degree l to the mean square of f over the sphere; it equals
+// sum_m (C_lm^2 + S_lm^2) of the coefficients in the 4-pi (fully
+// normalized) convention. dst is used if it has room. It panics like
+// PowerSpectrum.
+func (c *Coeffs) MeanSquareSpectrum(dst []float64) []float64 {
+	dst = c.PowerSpectrum(dst)
+	for l := range dst {
+		dst[l] /= 4 * math.Pi
+	}
+	return dst
+}

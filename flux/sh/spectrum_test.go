@@ -63,3 +63,21 @@ func TestPowerSpectrumParseval(t *testing.T) {
 		t.Errorf("S_5 = %.16g, integral of the degree-5 part squared = %.16g", s, w5)
 	}
 }
+
+// TestMeanSquareSpectrum checks S_l/(4 pi) against the sum of squared 4-pi
+// normalized coefficients (whose harmonics integrate to 4 pi, references.md).
+func TestMeanSquareSpectrum(t *testing.T) {
+	c := randomCoeffs(15, Convention{Norm: Schmidt, CondonShortley: true}, 41)
+	g := c.MustConvert(Convention{Norm: FourPi})
+	ms := c.MeanSquareSpectrum(nil)
+	for l := 0; l <= 15; l++ {
+		want := 0.0
+		for m := 0; m <= l; m++ {
+			a, b := g.At(l, m)
+			want += a*a + b*b
+		}
+		if math.Abs(ms[l]/want-1) > 1e-14 {
+			t.Errorf("l = %d: %v, want %v", l, ms[l], want)
+		}
+	}
+}

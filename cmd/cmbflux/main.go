@@ -48,6 +48,7 @@ type usageError struct {
 	msg string
 }
 
+// Error implements the error interface.
 func (e *usageError) Error() string {
 	if e.cmd == "" {
 		return e.msg + " (see cmbflux --help)"
@@ -93,7 +94,10 @@ var errBadInput = errors.New("bad input")
 // or reported by a reader without a sentinel; it maps to exit status 2.
 type inputError struct{ err error }
 
-func (e *inputError) Error() string   { return e.err.Error() }
+// Error implements the error interface.
+func (e *inputError) Error() string { return e.err.Error() }
+
+// Unwrap lets errors.Is find the cause and errBadInput.
 func (e *inputError) Unwrap() []error { return []error{e.err, errBadInput} }
 
 // inputErrorf returns an error about an input file that maps to status 2.

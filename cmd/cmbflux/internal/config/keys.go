@@ -37,7 +37,7 @@ type Key struct {
 	NoVary bool
 }
 
-// Help groups in the order they are printed.
+// Groups lists the help sections in the order they are printed.
 var Groups = []string{"Input", "Pattern", "Amplitude", "Output"}
 
 // BuildKeys lists every build parameter.

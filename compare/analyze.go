@@ -120,6 +120,11 @@ type Pair struct {
 	ByDegree []DegreeR `json:"by_degree"`
 	// Total is the correlation over degrees 1..LMax (Becker & Boschi 2002).
 	Total float64 `json:"total"`
+	// TotalConfidence is the one-sided confidence at which Total is
+	// significantly positive, treating the (LMax+1)^2 - 1 coefficients as
+	// independent pairs (SignificanceN; common practice, optimistic when the
+	// spectra are red).
+	TotalConfidence float64 `json:"total_confidence"`
 	// Weighted is the mean of the degree correlations weighted by
 	// sqrt(P_a(l) P_b(l)), the geometric mean of the degree powers.
 	Weighted float64 `json:"power_weighted_mean"`
@@ -151,8 +156,11 @@ type Result struct {
 	Votes        []int   `json:"-"`
 	ClusterVotes []int   `json:"-"`
 	VoteFraction float64 `json:"vote_fraction"`
-	// MeanModel summarises the mean model like any other.
-	MeanModel ModelSummary `json:"mean_model"`
+	// MeanModel summarises the mean model like any other; MeanCoeffs is its
+	// expansion (canonical convention, the average of the models'
+	// coefficients).
+	MeanModel  ModelSummary `json:"mean_model"`
+	MeanCoeffs *sh.Coeffs   `json:"-"`
 	// Options are the options with defaults resolved.
 	Options Options `json:"-"`
 }
@@ -239,6 +247,7 @@ func Analyze(models []Model, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res.MeanModel = *ms
+	res.MeanCoeffs = meanC
 
 	for a := 0; a < len(canon); a++ {
 		for b := a + 1; b < len(canon); b++ {
@@ -335,6 +344,8 @@ func pairStats(a, b string, ca, cb *sh.Coeffs) Pair {
 		p.Total = sh.TotalCorrelation(ca, cb, 1, ca.LMax)
 		if math.IsNaN(p.Total) {
 			p.Total = 0
+		} else if n := (ca.LMax+1)*(ca.LMax+1) - 1; n >= 3 {
+			p.TotalConfidence = SignificanceN(n, p.Total)
 		}
 	}
 	return p

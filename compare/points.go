@@ -81,16 +81,20 @@ func DistanceToOutlines(points [][2]float64, rings [][][2]float64) ([]float64, e
 // ProximityTest is the result of a Monte Carlo test of whether points lie
 // closer to the outlines than points placed at random.
 type ProximityTest struct {
-	MeanDistance float64 // mean angular distance of the points to the outlines, degrees
+	// MeanDistance is the mean angular distance of the points to the
+	// outlines, degrees.
+	MeanDistance float64 `json:"mean_distance_deg"`
 	// RandomMean and RandomStd describe the mean distance of the random
 	// point sets, degrees.
-	RandomMean, RandomStd float64
+	RandomMean float64 `json:"random_mean_deg"`
+	RandomStd  float64 `json:"random_std_deg"`
 	// PValue is the probability that a set of as many points, uniformly
 	// distributed on the sphere, has a mean distance at most MeanDistance:
 	// (1 + count) / (1 + trials), the unbiased Monte Carlo estimate of
 	// Davison & Hinkley (1997, Bootstrap Methods, eq. 4.11).
-	PValue float64
-	Trials int
+	PValue float64 `json:"p_value"`
+	// Trials is the number of random point sets.
+	Trials int `json:"trials"`
 }
 
 // TestProximity compares the mean distance of the points to the outlines with

@@ -17,16 +17,17 @@ const CMBRadiusKm = 3480.0
 type Region struct {
 	// Ring is the exterior ring, (lon, lat) degrees, counter-clockwise seen
 	// from outside the sphere (package flux/contour's orientation).
-	Ring [][2]float64
+	Ring [][2]float64 `json:"-"`
 	// Fraction is the area inside Ring as a fraction of the sphere (holes
 	// inside the ring are not subtracted; they are listed as separate rings
 	// by flux/contour).
-	Fraction float64
+	Fraction float64 `json:"area_fraction"`
 	// AreaKm2 is that area on the core-mantle boundary (radius CMBRadiusKm).
-	AreaKm2 float64
+	AreaKm2 float64 `json:"area_km2"`
 	// CentroidLon, CentroidLat locate the centre of mass of the region on
 	// the sphere, in degrees.
-	CentroidLon, CentroidLat float64
+	CentroidLon float64 `json:"centroid_lon"`
+	CentroidLat float64 `json:"centroid_lat"`
 }
 
 // SlowRegions returns the regions where the field is below level, largest

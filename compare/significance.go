@@ -54,3 +54,25 @@ func Significance(l int, r float64) float64 {
 	t := r * math.Sqrt(nu/(1-r*r))
 	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: nu}.CDF(t)
 }
+
+// SignificanceN returns the one-sided confidence level at which a
+// correlation r between n pairs of values is significantly positive, from
+// Student's t with nu = n - 2 degrees of freedom, t = r sqrt(nu / (1 - r^2))
+// (the test of a Pearson correlation, e.g. Press et al. 2007, Numerical
+// Recipes 3rd ed., section 14.5). Treating the coefficients of an expansion
+// as independent samples, as is common practice for total correlations, n is
+// the number of coefficients compared. It panics for n < 3.
+func SignificanceN(n int, r float64) float64 {
+	if n < 3 {
+		panic("compare: a correlation test needs at least 3 pairs")
+	}
+	if r >= 1 {
+		return 1
+	}
+	if r <= -1 {
+		return 0
+	}
+	nu := float64(n - 2)
+	t := r * math.Sqrt(nu/(1-r*r))
+	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: nu}.CDF(t)
+}

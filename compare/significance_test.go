@@ -77,3 +77,20 @@ func TestCriticalRCheckValues(t *testing.T) {
 		t.Error("confidence 1.5 accepted")
 	}
 }
+
+// TestSignificanceN: for n = 2l + 1 pairs SignificanceN equals the degree
+// test (same Student's t with n - 2 = 2l - 1 degrees of freedom, Eckhardt
+// 1984), and at the SciPy critical value for nu = 1 (l = 1, 95 % one-sided,
+// testdata/critical_r.tsv) it gives 0.95.
+func TestSignificanceN(t *testing.T) {
+	for _, l := range []int{1, 2, 5, 17} {
+		for _, r := range []float64{-0.3, 0.1, 0.6, 0.95} {
+			if a, b := SignificanceN(2*l+1, r), Significance(l, r); math.Abs(a-b) > 1e-15 {
+				t.Errorf("l = %d, r = %g: SignificanceN %g, Significance %g", l, r, a, b)
+			}
+		}
+	}
+	if s := SignificanceN(3, 0.98768834059561972); math.Abs(s-0.95) > 1e-9 {
+		t.Errorf("SignificanceN(3, r_crit) = %g, want 0.95", s)
+	}
+}

@@ -15,23 +15,24 @@ func TestReadNetCDFBadFiles(t *testing.T) {
 	tests := []struct {
 		file string
 		want []string
+		auto []string // through ReadFile's format detection, when not want
 	}{
-		{"nc-truncated.nc", []string{"variable dvs", "file truncated", "beyond the end of the file"}},
-		{"nc-truncated-header.nc", []string{"byte offset 44", "gatt_list nelems", "file truncated"}},
-		{"nc-dim-length-absurd.nc", []string{"variable lat", "vsize", "needs more than"}},
-		{"nc-begin-beyond-end.nc", []string{"variable dvs", "begin", "beyond the end"}},
-		{"nc-dim-count-billions.nc", []string{"byte offset 12", "dim_list nelems", "negative value"}},
-		{"nc-dim-count-two-billion.nc", []string{"dim_list nelems", "claims 2000000000 entries"}},
-		{"nc-attr-count-billions.nc", []string{"attribute nelems of title", "1500000000 values"}},
-		{"nc-numrecs-billions.nc", []string{"variable v", "numrecs", "2000000000 records"}},
-		{"nc-bad-magic.nc", []string{"magic", "not a netCDF classic file"}},
-		{"nc-bad-version.nc", []string{"magic", "version byte 0x03"}},
-		{"nc-hdf5.nc", []string{"netCDF-4/HDF5", "nccopy -k classic in.nc out.nc", "-k cdf5"}},
-		{"nc-bad-name.nc", []string{"dimension name", "\"l/n\""}},
-		{"nc-bad-tag.nc", []string{"dim_list tag", "0xB"}},
-		{"nc-lat-nonmonotonic.nc", []string{"variable lat", "not strictly monotonic", "CF-1.8 section 1.2"}},
-		{"nc-no-lat-coordinate.nc", []string{"no latitude coordinate variable", "degrees_north"}},
-		{"nc-all-fill.nc", []string{"variable dvs", "every value is missing"}},
+		{file: "nc-truncated.nc", want: []string{"variable dvs", "file truncated", "beyond the end of the file"}},
+		{file: "nc-truncated-header.nc", want: []string{"byte offset 44", "gatt_list nelems", "file truncated"}},
+		{file: "nc-dim-length-absurd.nc", want: []string{"variable lat", "vsize", "needs more than"}},
+		{file: "nc-begin-beyond-end.nc", want: []string{"variable dvs", "begin", "beyond the end"}},
+		{file: "nc-dim-count-billions.nc", want: []string{"byte offset 12", "dim_list nelems", "negative value"}},
+		{file: "nc-dim-count-two-billion.nc", want: []string{"dim_list nelems", "claims 2000000000 entries"}},
+		{file: "nc-attr-count-billions.nc", want: []string{"attribute nelems of title", "1500000000 values"}},
+		{file: "nc-numrecs-billions.nc", want: []string{"variable v", "numrecs", "2000000000 records"}},
+		{file: "nc-bad-magic.nc", want: []string{"magic", "not a netCDF classic file"}, auto: []string{"a binary file", "43 44 58 01", "netCDF classic (magic \"CDF\" then version byte 1, 2 or 5)"}},
+		{file: "nc-bad-version.nc", want: []string{"magic", "version byte 0x03"}},
+		{file: "nc-hdf5.nc", want: []string{"netCDF-4/HDF5", "nccopy -k classic in.nc out.nc", "-k cdf5"}, auto: []string{"netCDF-4 (HDF5)", "nccopy -k classic in.nc out.nc"}},
+		{file: "nc-bad-name.nc", want: []string{"dimension name", "\"l/n\""}},
+		{file: "nc-bad-tag.nc", want: []string{"dim_list tag", "0xB"}},
+		{file: "nc-lat-nonmonotonic.nc", want: []string{"variable lat", "not strictly monotonic", "CF-1.8 section 1.2"}},
+		{file: "nc-no-lat-coordinate.nc", want: []string{"no latitude coordinate variable", "degrees_north"}},
+		{file: "nc-all-fill.nc", want: []string{"variable dvs", "every value is missing"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.file, func(t *testing.T) {
@@ -51,6 +52,27 @@ func TestReadNetCDFBadFiles(t *testing.T) {
 			for _, w := range tt.want {
 				if !strings.Contains(err.Error(), w) {
 					t.Errorf("message %q lacks %q", err, w)
+				}
+			}
+			// The same file through ReadFile, whose format detection must
+			// hand it to the netCDF reader (or, for a file that is not
+			// netCDF at all, say it is binary) rather than to the text
+			// reader.
+			_, err2 := ReadFile(path, ReadOptions{})
+			if err2 == nil {
+				t.Fatal("ReadFile: no error")
+			}
+			if !errors.Is(err2, ErrBadInput) || !strings.HasPrefix(err2.Error(), path+":") {
+				t.Errorf("ReadFile: error %v does not name %s or wrap ErrBadInput", err2, path)
+			}
+			if tt.auto == nil {
+				if err2.Error() != err.Error() {
+					t.Errorf("ReadFile: %v\nReadNetCDF: %v", err2, err)
+				}
+			}
+			for _, w := range tt.auto {
+				if !strings.Contains(err2.Error(), w) {
+					t.Errorf("ReadFile: message %q lacks %q", err2, w)
 				}
 			}
 		})

@@ -59,8 +59,10 @@ func Read(name string, r io.Reader, opts ReadOptions) (*Grid, error) {
 //
 // The format is opts.Format when set ("text", "csv", "netcdf"); otherwise
 // it is detected from the content: netCDF classic by its magic number
-// "CDF\x01", "CDF\x02" or "CDF\x05"; a netCDF-4 (HDF5) file is refused
-// with advice to convert it; CSV when the first line that is neither blank
+// "CDF\x01", "CDF\x02" or "CDF\x05" (any other control byte after "CDF"
+// goes to the netCDF reader too, which names the bad version); a netCDF-4
+// (HDF5) file is refused with advice to convert it; any other file with a
+// NUL byte in its first kilobyte is refused as binary; CSV when the first line that is neither blank
 // nor a '#' comment contains a comma; whitespace-separated text otherwise.
 // A gzip-compressed file (RFC 1952) is decompressed first; a UTF-16 file
 // is refused with advice. Source records name, the sha256 of data (as
@@ -87,6 +89,9 @@ func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
 	switch format {
 	case "hdf5":
 		return nil, inputErr(name, 0, "this is a netCDF-4 (HDF5) file, which cmbflux does not read; convert it to netCDF classic with `nccopy -k classic in.nc out.nc` (or `nccopy -k cdf5` for 64-bit data) from the standard netCDF utilities")
+	case "binary":
+		n := min(len(data), 8)
+		return nil, inputErr(name, 0, "a binary file (it holds NUL bytes; first bytes % x) that is none of the formats cmbflux reads: netCDF classic (magic \"CDF\" then version byte 1, 2 or 5), text or CSV; netCDF-4/HDF5 must be converted to classic first (`nccopy -k classic in.nc out.nc`), UTF-16 text saved as UTF-8", data[:n])
 	case "utf16":
 		return nil, inputErr(name, 0, "the file is encoded as UTF-16; save it as UTF-8 (or plain ASCII) text")
 	case "netcdf":
@@ -112,10 +117,14 @@ func ReadBytes(name string, data []byte, opts ReadOptions) (*Grid, error) {
 }
 
 // DetectFormat names the format of a file from its first bytes: "netcdf",
-// "hdf5", "utf16", "csv" or "text", by the rules documented on ReadBytes
+// "hdf5", "utf16", "binary", "csv" or "text", by the rules documented on ReadBytes
 // (it does not look inside gzip-compressed data).
 func DetectFormat(data []byte) string {
-	if len(data) >= 4 && string(data[:3]) == netcdfMagic && (data[3] == 1 || data[3] == 2 || data[3] == 5) {
+	// "CDF" followed by a byte that text does not hold (a control
+	// character other than tab, newline or carriage return) is taken as
+	// netCDF, so that an unknown version byte (say 3) is reported by the
+	// netCDF reader as such rather than as a bad text line.
+	if len(data) >= 4 && string(data[:3]) == netcdfMagic && data[3] < 0x20 && data[3] != '\t' && data[3] != '\n' && data[3] != '\r' {
 		return "netcdf"
 	}
 	if bytes.HasPrefix(data, []byte(hdf5Magic)) {
@@ -125,6 +134,15 @@ func DetectFormat(data []byte) string {
 	// Unicode Standard; from memory).
 	if bytes.HasPrefix(data, []byte("\xff\xfe")) || bytes.HasPrefix(data, []byte("\xfe\xff")) {
 		return "utf16"
+	}
+	// Text and CSV hold no NUL byte; a file that does, in its first
+	// kilobyte, is some binary format we do not read.
+	head := data
+	if len(head) > 1024 {
+		head = head[:1024]
+	}
+	if bytes.IndexByte(head, 0) >= 0 {
+		return "binary"
 	}
 	for rest := data; len(rest) > 0; {
 		line := rest

@@ -451,7 +451,10 @@ func TestDetectFormat(t *testing.T) {
 		{"CDF\x01\x00", "netcdf"},         // netCDF classic format specification: magic "CDF" 0x01
 		{"CDF\x02\x00", "netcdf"},         // 64-bit offset variant
 		{"CDF\x05\x00", "netcdf"},         // 64-bit data variant
-		{"CDF\x03\x00", "text"},           // not a netCDF version
+		{"CDF\x03\x00", "netcdf"},         // not a netCDF version, but the netCDF reader names it
+		{"CDF 1 2\n", "text"},             // "CDF" then a space: a text line
+		{"CDX\x01\x00\x00", "binary"},     // NUL bytes: neither text nor CSV (common practice)
+		{"\x1f\x8b\x08\x00", "binary"},    // gzip (RFC 1952) is unpacked before detection
 		{"\x89HDF\r\n\x1a\n\x00", "hdf5"}, // HDF5 format specification, superblock signature
 		{"# a, comment\n\n0 0 1\n", "text"},
 		{"# comment\nlon,lat,v\n", "csv"},

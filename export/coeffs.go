@@ -153,7 +153,7 @@ func buildCoeffTable(c *sh.Coeffs, meta *Meta, opt *CoeffOptions) (*coeffTable, 
 	t.columns = [4]string{"l", "m", "cos", "sin"}
 	var cx *sh.ComplexCoeffs
 	if opt.Complex {
-		cx = cc.Complex()
+		cx = toComplex(cc)
 		form, expansion = "complex", complexExpansion(opt.Conv.CondonShortley)
 		orders = "0..l; " + complexNegativeRule(opt.Conv.CondonShortley)
 		if opt.NegativeOrders {

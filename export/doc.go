@@ -59,7 +59,9 @@
 //
 // with s_m = (-1)^m when the Condon-Shortley phase is included (the physics
 // convention, as in scipy.special.sph_harm) and 1 otherwise; so c_l0 = C_l0,
-// c_lm = (C_lm - i S_lm)/sqrt(2) and c_l,-m = s_m conj(c_lm) for m > 0.
+// c_lm = (C_lm - i S_lm)/sqrt(2) and c_l,-m = s_m conj(c_lm) for m > 0 (for
+// unnormalized functions, where N_lm = 1 in both forms, c_lm =
+// (C_lm - i S_lm)/2).
 //
 // Data rows follow the header: "l m a b" separated by one space (text) or
 // a comma (CSV, after a heading record "l,m,cos,sin" or "l,m,re,im", RFC

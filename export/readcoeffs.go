@@ -700,7 +700,7 @@ func (p *parsed) assemble(name string, opt *CoeffReadOptions) (*CoeffTable, erro
 		}
 	}
 	if complexForm {
-		c = z.Real()
+		c = fromComplex(z)
 	}
 	// Missing pairs are zeros, with a warning.
 	var missing []string

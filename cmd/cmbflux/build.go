@@ -59,7 +59,7 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 	p.buildKeys()
 	var o buildOpts
 	p.stringVar(&o.config, "config", "FILE", "read the build parameters from a YAML file (- for standard input); flags override it")
-	p.boolVar(&o.force, "force", "replace a non-empty output folder")
+	p.boolVar(&o.force, "force", "replace a non-empty output folder written by cmbflux")
 	p.boolVar(&o.quiet, "quiet", "print nothing but warnings and errors")
 	pos, err := p.parse(args)
 	if err != nil {
@@ -116,6 +116,9 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 // With noSync the files are not synced to disk one by one (see
 // outdir.Stage.NoSync); sweeps use it and verify manifests on resume.
 func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, force, noSync bool, set config.Set) (*Summary, error) {
+	if err := checkForce(out, force); err != nil {
+		return nil, err
+	}
 	st, err := outdir.New(out, force)
 	if err != nil {
 		return nil, err
@@ -168,4 +171,23 @@ func printSummary(w io.Writer, out string, s *Summary) {
 		fmt.Fprintf(w, "  sub-adiabatic %.2f %% of the CMB\n", 100**s.AreaSubadiabatic)
 	}
 	fmt.Fprintf(w, "  files        %s\n", strings.Join(s.Files, " "))
+}
+
+// checkForce refuses --force on a non-empty folder that cmbflux did not
+// write (no manifest.yaml, runs.tsv or bc/manifest.yaml in it), so that a
+// mistyped --out never deletes someone's data.
+func checkForce(dir string, force bool) error {
+	if !force {
+		return nil
+	}
+	ents, err := os.ReadDir(dir)
+	if err != nil || len(ents) == 0 {
+		return nil
+	}
+	for _, marker := range []string{"manifest.yaml", "runs.tsv", filepath.Join("bc", "manifest.yaml")} {
+		if _, err := os.Stat(filepath.Join(dir, marker)); err == nil {
+			return nil
+		}
+	}
+	return fmt.Errorf("%s: %w and was not written by cmbflux (no manifest.yaml or runs.tsv in it): --force replaces only cmbflux output folders; remove it yourself or choose another --out", dir, outdir.ErrNotEmpty)
 }

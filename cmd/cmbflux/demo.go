@@ -42,7 +42,7 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 	out := "demo-out"
 	var force, quiet bool
 	p.stringVar(&out, "out", "DIR", "output folder (default demo-out)")
-	p.boolVar(&force, "force", "replace a non-empty output folder")
+	p.boolVar(&force, "force", "replace a non-empty output folder written by cmbflux")
 	p.boolVar(&quiet, "quiet", "print nothing but warnings and errors")
 	pos, err := p.parse(args)
 	if err != nil {
@@ -50,6 +50,9 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 	}
 	if len(pos) > 0 {
 		return usagef("demo", "unexpected argument %q", pos[0])
+	}
+	if err := checkForce(out, force); err != nil {
+		return err
 	}
 	st, err := outdir.New(out, force)
 	if err != nil {

@@ -203,6 +203,28 @@ func TestFailedBuildLeavesNothing(t *testing.T) {
 	if b, _ := os.ReadFile("bc/keep.txt"); string(b) != "mine" {
 		t.Error("the existing folder was touched")
 	}
+	// Not even --force replaces a folder that cmbflux did not write.
+	for _, args := range [][]string{
+		{"build", "--demo", "--qstar", "1", "--qmean", "80", "--out", "bc", "--force"},
+		{"demo", "--out", "bc", "--force"},
+	} {
+		if _, errs, code := cli(args, ""); code != 2 || !strings.Contains(errs, "not written by cmbflux") {
+			t.Errorf("%v: exit %d %q", args, code, errs)
+		}
+	}
+	writeFile(t, "s.yaml", "base: {demo: true, qmean: 80}\nvary: {qstar: [1, 2]}\n")
+	if _, errs, code := cli([]string{"sweep", "s.yaml", "--out", "bc", "--force"}, ""); code != 2 || !strings.Contains(errs, "not written by cmbflux") {
+		t.Errorf("sweep --force: exit %d %q", code, errs)
+	}
+	if b, _ := os.ReadFile("bc/keep.txt"); string(b) != "mine" {
+		t.Error("--force deleted a folder that cmbflux did not write")
+	}
+	// A cmbflux folder is replaced by --force.
+	mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--out", "ok")
+	mustCLI(t, "build", "--demo", "--qstar", "2", "--qmean", "80", "--out", "ok", "--force")
+	if s := loadSummary(t, "ok"); s.QStar != 2 {
+		t.Errorf("--force did not replace the build: q* %g", s.QStar)
+	}
 }
 
 func TestStdinInputAndConfig(t *testing.T) {

@@ -80,7 +80,7 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 	p.stringVar(&o.only, "only", "I[,J...]", "do only the runs with these indices from runs.tsv (ranges like 4-7 allowed)")
 	p.intVar(&o.jobs, "jobs", "N", "runs in parallel (default: the number of CPUs)")
 	p.boolVar(&o.list, "list", "print the runs (runs.tsv) and exit without writing anything")
-	p.boolVar(&o.force, "force", "delete the contents of a non-empty output folder that holds another sweep, and start over")
+	p.boolVar(&o.force, "force", "delete the contents of an output folder written by cmbflux (another sweep, or this one) and start over")
 	p.boolVar(&o.quiet, "quiet", "print nothing but warnings and errors")
 	pos, err := p.parse(args)
 	if err != nil {
@@ -361,6 +361,9 @@ func prepareSweepDir(out string, index, sweepFile []byte, resume, force bool) er
 		same := err == nil && bytes.Equal(old, index)
 		switch {
 		case force:
+			if err := checkForce(out, true); err != nil {
+				return err
+			}
 			if err := clearDir(out); err != nil {
 				return err
 			}

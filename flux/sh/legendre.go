@@ -67,61 +67,40 @@ type plm struct {
 	lo, hi  []float64 // output multipliers: value = p * lo * hi
 	sm      float64   // sectoral mantissa of P_ll / 2^se
 	se      int
-	tab     *recTable // precomputed a_lm, b_lm, or nil
+	sq, isq []float64 // shared sqrtTable entries, k = 0..2 lmax+1
 }
 
-// recTable holds the recursion coefficients a_lm and b_lm at Index(l, m)
-// (m < l) for degrees up to lmax; a table serves every smaller lmax. The
-// values are computed by the same expressions as the on-the-fly path, so
-// results do not depend on whether a table is used.
-type recTable struct {
-	lmax int
-	a, b []float64
+// sqrtTable holds sqrt(k) and 1/sqrt(k) for k = 0..n-1 (1/sqrt(0) unused).
+// The recursion coefficients are products of these:
+//
+//	a_lm = sqrt(2l-1) sqrt(2l+1) / (sqrt(l-m) sqrt(l+m)),
+//	b_lm = sqrt(2l+1) sqrt(l-1-m) sqrt(l-1+m) / (sqrt(2l-3) sqrt(l-m) sqrt(l+m)),
+//
+// a few roundings each, which is as accurate as forming them with one
+// division and one square root (checked against the mpmath table) and
+// several times faster. Tables only grow and are shared read-only.
+type sqrtTable struct {
+	sq, isq []float64
 }
 
-// recTableMax is the largest degree for which recursion coefficients are
-// kept in memory (16 bytes per coefficient: 8.4 MB at 1024).
-const recTableMax = 1024
+var sqrtCache atomic.Pointer[sqrtTable]
 
-var recCache atomic.Pointer[recTable]
-
-// recFor returns a table covering lmax, or nil above recTableMax.
-func recFor(lmax int) *recTable {
-	if lmax > recTableMax {
-		return nil
-	}
-	if t := recCache.Load(); t != nil && t.lmax >= lmax {
+// sqrtFor returns a table with at least n entries.
+func sqrtFor(n int) *sqrtTable {
+	if t := sqrtCache.Load(); t != nil && len(t.sq) >= n {
 		return t
 	}
-	n := max(lmax, 64)
-	t := &recTable{lmax: n, a: make([]float64, NumCoeffs(n)), b: make([]float64, NumCoeffs(n))}
-	for l := 1; l <= n; l++ {
-		fl := float64(l)
-		A := (2*fl - 1) * (2*fl + 1)
-		var B float64
-		if l >= 2 {
-			B = (2*fl + 1) / (2*fl - 3)
-		}
-		i0 := Index(l, 0)
-		for m := 0; m < l; m++ {
-			a, b := recCoef(fl, float64(m), A, B)
-			t.a[i0+m], t.b[i0+m] = a, b
-		}
+	n = max(n, 512)
+	t := &sqrtTable{sq: make([]float64, n), isq: make([]float64, n)}
+	for k := 1; k < n; k++ {
+		t.sq[k] = math.Sqrt(float64(k))
+		t.isq[k] = 1 / t.sq[k]
 	}
 	// Concurrent callers may each build a table; any of them is correct.
-	if old := recCache.Load(); old == nil || old.lmax < t.lmax {
-		recCache.Store(t)
+	if old := sqrtCache.Load(); old == nil || len(old.sq) < n {
+		sqrtCache.Store(t)
 	}
 	return t
-}
-
-// recCoef returns a_lm and b_lm of the column recursion, given
-// A = (2l-1)(2l+1) and B = (2l+1)/(2l-3) (0 for l = 1).
-func recCoef(fl, fm, A, B float64) (a, b float64) {
-	inv := 1 / ((fl - fm) * (fl + fm))
-	a = math.Sqrt(A * inv)
-	b = math.Sqrt(B * ((fl - 1 - fm) * (fl - 1 + fm)) * inv)
-	return a, b
 }
 
 // reset prepares the generator for degrees 0..lmax at colatitude colat
@@ -158,7 +137,8 @@ func (g *plm) reset(lmax int, colat float64) {
 	}
 	g.p, g.q, g.ex, g.lo, g.hi = g.p[:n], g.q[:n], g.ex[:n], g.lo[:n], g.hi[:n]
 	g.l = -1
-	g.tab = recFor(lmax)
+	tab := sqrtFor(2*lmax + 2)
+	g.sq, g.isq = tab.sq, tab.isq
 }
 
 // setScale sets the output multipliers of column m from its exponent. The
@@ -202,23 +182,14 @@ func (g *plm) next(out []float64) int {
 		return 0
 	}
 	fl := float64(l)
-	A := (2*fl - 1) * (2*fl + 1)
 	p, q, lo, hi := g.p[:l+1], g.q[:l+1], g.lo[:l+1], g.hi[:l+1]
 	if g.reinsch {
 		k := 1 / (2*fl - 1)
 		h := g.h
-		var ta []float64
-		if g.tab != nil {
-			ta = g.tab.a[Index(l, 0):]
-		}
+		r1 := g.sq[2*l-1] * g.sq[2*l+1]
 		for m := 0; m < l; m++ {
 			fm := float64(m)
-			var a float64
-			if ta != nil {
-				a = ta[m]
-			} else {
-				a = math.Sqrt(A * (1 / ((fl - fm) * (fl + fm)))) // as in recCoef
-			}
+			a := r1 * g.isq[l-m] * g.isq[l+m]
 			c := a * k
 			r := c * (fl + fm)
 			amr := c * (fl - fm - 1)
@@ -232,22 +203,18 @@ func (g *plm) next(out []float64) int {
 			out[m] = v * lo[m] * hi[m]
 		}
 	} else {
-		var B float64
-		if l >= 2 {
-			B = (2*fl + 1) / (2*fl - 3)
-		}
 		x := g.x
-		var ta, tb []float64
-		if g.tab != nil {
-			i0 := Index(l, 0)
-			ta, tb = g.tab.a[i0:i0+l], g.tab.b[i0:i0+l]
+		r1 := g.sq[2*l-1] * g.sq[2*l+1]
+		var r2 float64
+		if l >= 2 {
+			r2 = g.sq[2*l+1] * g.isq[2*l-3]
 		}
 		for m := 0; m < l; m++ {
-			var a, b float64
-			if ta != nil {
-				a, b = ta[m], tb[m]
-			} else {
-				a, b = recCoef(fl, float64(m), A, B)
+			w := g.isq[l-m] * g.isq[l+m]
+			a := r1 * w
+			var b float64
+			if m < l-1 {
+				b = r2 * w * g.sq[l-1-m] * g.sq[l-1+m]
 			}
 			v := a*x*p[m] - b*q[m]
 			p[m], q[m] = v, p[m]

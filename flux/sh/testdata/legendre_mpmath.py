@@ -9,7 +9,8 @@ python3-mpmath (apt-get install python3-mpmath):
 Method. The Ferrers functions without the Condon-Shortley phase are computed
 at 60 significant digits (mpmath arbitrary precision; mpmath numbers have an
 unbounded exponent, so nothing under- or overflows) by the unnormalized
-recurrence in degree (Abramowitz & Stegun 1964, 8.5.3)
+recurrence in degree (Abramowitz & Stegun 1964, sec. 8.5; equation numbers
+here from memory)
 
     (l-m) P_l^m = (2l-1) x P_(l-1)^m - (l+m-1) P_(l-2)^m,
     P_m^m = (2m-1)!! (1-x^2)^(m/2),  P_(m+1)^m = (2m+1) x P_m^m,

@@ -73,6 +73,10 @@ type sweepOpts struct {
 }
 
 func runSweep(stdout, stderr io.Writer, args []string) error {
+	// Ctrl-C and SIGTERM (a scheduler's time limit) stop the sweep between
+	// runs; the runs in progress are removed, the complete ones kept.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
 	p := newParser("sweep", stdout, sweepHelp, sweepExample)
 	o := sweepOpts{jobs: runtime.NumCPU()}
 	p.stringVar(&o.out, "out", "DIR", "output folder (default: the file's out:)")
@@ -138,9 +142,6 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 	if err := prepareSweepDir(out, index, data, resume, o.force); err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-
 	tty := false
 	if f, ok := stderr.(*os.File); ok {
 		tty = term.IsTerminal(int(f.Fd()))

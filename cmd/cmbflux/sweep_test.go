@@ -195,7 +195,15 @@ func TestSweepSurvivesSIGKILL(t *testing.T) {
 		if err := cmd.Start(); err != nil {
 			t.Fatal(err)
 		}
-		time.Sleep(full / 3)
+		// Wait until the sweep has written its index (its signal handler is
+		// installed before that), then a little into the runs.
+		for i := 0; i < 500; i++ {
+			if _, err := os.Stat(filepath.Join(target, "runs.tsv")); err == nil {
+				break
+			}
+			time.Sleep(10 * time.Millisecond)
+		}
+		time.Sleep(full / 4)
 		cmd.Process.Signal(sig)
 		err := cmd.Wait()
 		if err != nil {

@@ -156,21 +156,23 @@ func readInput(path string) ([]byte, string, error) {
 }
 
 func printSummary(w io.Writer, out string, s *Summary) {
-	unit := s.Units
+	row := func(label, format string, args ...any) {
+		fmt.Fprintf(w, "  %-14s "+format+"\n", append([]any{label}, args...)...)
+	}
 	fmt.Fprintf(w, "wrote %s/\n", filepath.ToSlash(out))
-	fmt.Fprintf(w, "  quantity     %s (%s), lmax %d, taper %s\n", s.Quantity, unit, s.LMax, s.Taper)
-	fmt.Fprintf(w, "  convention   %s, %s form\n", s.Convention, s.Form)
-	fmt.Fprintf(w, "  q*           %.4g (peak-to-peak over mean of the total flux)\n", s.QStar)
+	row("quantity", "%s (%s), lmax %d, taper %s", s.Quantity, s.Units, s.LMax, s.Taper)
+	row("convention", "%s, %s form", s.Convention, s.Form)
 	if s.QMean != nil {
-		fmt.Fprintf(w, "  q_mean       %.4g mW/m^2 (%.4g TW)\n", *s.QMean, *s.HeatFlowTW)
-		fmt.Fprintf(w, "  q_max        %.4g mW/m^2 at lon %.1f, lat %.1f\n", *s.QMax, s.QMaxLonLat[0], s.QMaxLonLat[1])
-		fmt.Fprintf(w, "  q_min        %.4g mW/m^2 at lon %.1f, lat %.1f\n", *s.QMin, s.QMinLonLat[0], s.QMinLonLat[1])
+		row("q*", "%.4g (peak to peak over mean of the total flux, %s)", s.QStar, strings.TrimPrefix(s.QStarDefinition, "(q_max - q_min) / q_mean of the total heat flux, "))
+		row("q_mean", "%.4g mW/m^2 (%.4g TW)", *s.QMean, *s.HeatFlowTW)
+		row("q_max", "%.4g mW/m^2 at lon %.1f, lat %.1f", *s.QMax, s.QMaxLonLat[0], s.QMaxLonLat[1])
+		row("q_min", "%.4g mW/m^2 at lon %.1f, lat %.1f", *s.QMin, s.QMinLonLat[0], s.QMinLonLat[1])
+		row("negative", "%.2f %% of the CMB", 100*s.AreaNegative)
+		if s.AreaSubadiabatic != nil {
+			row("sub-adiabatic", "%.2f %% of the CMB", 100**s.AreaSubadiabatic)
+		}
 	}
-	fmt.Fprintf(w, "  negative     %.2f %% of the CMB\n", 100*s.AreaNegative)
-	if s.AreaSubadiabatic != nil {
-		fmt.Fprintf(w, "  sub-adiabatic %.2f %% of the CMB\n", 100**s.AreaSubadiabatic)
-	}
-	fmt.Fprintf(w, "  files        %s\n", strings.Join(s.Files, " "))
+	row("files", "%s", strings.Join(s.Files, " "))
 }
 
 // checkForce refuses --force on a non-empty folder that cmbflux did not

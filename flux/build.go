@@ -283,8 +283,11 @@ func (r *Result) affine(q Quantity) (s, m float64, err error) {
 		if !r.HasAdiabatic {
 			return 0, 0, fmt.Errorf("%w: %s needs an adiabatic reference: set the adiabatic flux or heat flow", ErrSetting, q)
 		}
-		if r.QMean == r.QAd {
-			return 0, 0, fmt.Errorf("%w: %s is undefined when the mean flux equals the adiabatic flux", ErrSetting, q)
+		if !(r.QMean > r.QAd) {
+			// With q_mean < q_ad the denominator is negative and the
+			// quantity would be positive where the flux is sub-adiabatic,
+			// the opposite of what its sign text (Quantity.Info) promises.
+			return 0, 0, fmt.Errorf("%w: %s = (q - q_ad)/(q_mean - q_ad) needs a mean flux above the adiabatic flux (q_mean %.4g mW/m^2, q_ad %.4g mW/m^2): otherwise its sign is reversed or it is undefined; write the heat flux or the flux anomaly instead", ErrSetting, q, r.QMean*1e3, r.QAd*1e3)
 		}
 		return qa / (r.QMean - r.QAd), 1, nil
 	case CoreGradient:

@@ -171,6 +171,9 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 	d.MinToSlowestDeg = angle(p.min.at, p.slow) * rad2deg
 	d.Amplitude = a
 	r.Warnings = append(r.Warnings, p.warn...)
+	if a == 0 {
+		r.Warnings = append(r.Warnings, "uniform flux: the amplitude is zero (q* = 0), so the boundary condition is homogeneous and carries no pattern; check that q* or the physical constants were set")
+	}
 	if qm < 1e-3 || qm > 1 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("units: mean flux %.4g mW/m^2 (%.4g TW) is far outside the usual 10-300 mW/m^2 (3-45 TW): check the units (flux in W/m^2 inside the library, mW/m^2 at the edge; heat flow in W, TW at the edge)", qm*mw, HeatFlowFromFlux(qm)/TW))
 	}

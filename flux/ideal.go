@@ -53,13 +53,25 @@ func Harmonics(terms ...Term) (*sh.Coeffs, error) {
 // Ideal returns the pattern of a sum of harmonics: the flux anomaly has the
 // sign of the sum (positive terms raise the flux), with the same amplitude
 // control as tomographic patterns. opt may be nil; its LMax defaults to the
-// highest degree of the terms.
+// highest degree of the terms. Terms above a smaller LMax are dropped, with a
+// warning (Pattern.Warnings).
 func Ideal(opt *PatternOptions, terms ...Term) (*Pattern, error) {
 	c, err := Harmonics(terms...)
 	if err != nil {
 		return nil, err
 	}
-	return NewPattern(c, opt)
+	p, err := NewPattern(c, opt)
+	if err != nil {
+		return nil, err
+	}
+	if opt != nil && opt.LMax > 0 {
+		for _, t := range terms {
+			if t.L > opt.LMax && t.Weight != 0 {
+				p.warn = append(p.warn, fmt.Sprintf("harmonic dropped: the term (l, m) = (%d, %d) lies above lmax %d and is not in the pattern; raise lmax to %d or remove the term", t.L, t.M, opt.LMax, t.L))
+			}
+		}
+	}
+	return p, nil
 }
 
 // ParseTerm reads a harmonic term written L:M[:cos|sin][:WEIGHT], for

@@ -19,7 +19,8 @@ const (
 	FluxRelative
 	// SuperAdiabatic is (q - q_ad) / (q_mean - q_ad), the super-adiabatic
 	// flux normalised by its mean, dimensionless, mean 1; below 0 where the
-	// flux is sub-adiabatic (stratified). Needs an adiabatic reference.
+	// flux is sub-adiabatic (stratified). Needs an adiabatic reference
+	// below the mean flux (Result.Coeffs refuses it otherwise).
 	SuperAdiabatic
 	// CoreGradient is the radial temperature gradient on the core side of
 	// the boundary, dT/dr = -q / k_core in K/m (r outward): negative where

@@ -57,6 +57,7 @@ func (p *Pattern) Rotate(poleLon, poleLat, angle float64) (*Pattern, error) {
 // Blend returns the pattern (1 - w) a + w b (coefficients of the
 // band-limited patterns, and of the inputs for the slowest-region
 // diagnostic), with the options of a. Extrema and areas are searched anew.
+// A weight outside [0, 1] extrapolates and draws a warning.
 func Blend(a, b *Pattern, w float64) (*Pattern, error) {
 	if math.IsNaN(w) || math.IsInf(w, 0) {
 		return nil, fmt.Errorf("%w: blend weight %g must be finite", ErrSetting, w)
@@ -73,6 +74,9 @@ func Blend(a, b *Pattern, w float64) (*Pattern, error) {
 	o := a.opts
 	o.LMax = max(a.g.LMax, b.g.LMax)
 	var warn []string
+	if w < 0 || w > 1 {
+		warn = append(warn, fmt.Sprintf("blend extrapolates: weight %g lies outside [0, 1], so the pattern is not between the two it blends (its amplitude per unit of either may grow without bound)", w))
+	}
 	warn = append(warn, a.warn...)
 	for _, s := range b.warn {
 		dup := false

@@ -1,0 +1,67 @@
+package flux
+
+import (
+	"math"
+	"testing"
+)
+
+func TestSuperAdiabaticNeedsSuperadiabaticMean(t *testing.T) {
+	// (q - q_ad)/(q_mean - q_ad) is promised positive where q > q_ad
+	// (Quantity.Info). With q_mean < q_ad its denominator is negative and
+	// the sign would flip (arithmetic): at the flux maximum of a Y_1^0
+	// pattern, q > q_ad, the value would be negative. It must be refused,
+	// and accepted when q_mean > q_ad with the value of the definition.
+	p, _ := Ideal(nil, Term{L: 1, M: 0, Weight: 1})
+	r, _ := p.WithQStar(1, Reference{QMean: 0.05, QAd: 0.06})
+	if _, err := r.Coeffs(SuperAdiabatic); err == nil {
+		t.Error("super-adiabatic quantity with q_mean < q_ad must be refused")
+	}
+	if _, err := r.At(SuperAdiabatic, 0, 90); err == nil {
+		t.Error("super-adiabatic value with q_mean < q_ad must be refused")
+	}
+	r, _ = p.WithQStar(1, Reference{QMean: 0.05, QAd: 0.04})
+	// q at the north pole is q_mean (1 + q*/2) = 0.075 (TestZonalY10ClosedForms).
+	if v, err := r.At(SuperAdiabatic, 0, 90); err != nil || !near(v, (0.075-0.04)/(0.05-0.04), 1e-12) {
+		t.Errorf("super-adiabatic value at the pole %g (%v), want %g", v, err, (0.075-0.04)/(0.05-0.04))
+	}
+}
+
+func TestWastefulSettingWarnings(t *testing.T) {
+	// Settings that run but would waste a simulation: q* = 0 (a uniform
+	// boundary condition), an idealised term above lmax (silently
+	// dropped otherwise), a blend weight outside [0, 1] (extrapolation).
+	p, _ := Ideal(nil, Term{L: 2, M: 2, Weight: 1})
+	r, _ := p.WithQStar(0, Reference{QMean: 0.05})
+	if !hasWarning(r, "uniform flux") {
+		t.Errorf("q* = 0: no warning in %q", r.Warnings)
+	}
+	r, _ = p.WithQStar(1, Reference{QMean: 0.05})
+	if hasWarning(r, "uniform flux") {
+		t.Errorf("q* = 1 drew the uniform-flux warning: %q", r.Warnings)
+	}
+	q, err := Ideal(&PatternOptions{LMax: 2}, Term{L: 2, M: 2, Weight: 1}, Term{L: 4, M: 1, Weight: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if w := q.Warnings(); len(w) != 1 || !contains(w[0], "harmonic dropped") {
+		t.Errorf("a term above lmax: warnings %q", w)
+	}
+	if got := q.Coeffs(); got.LMax != 2 || math.Abs(got.C[5]-1) > 0 {
+		t.Errorf("the pattern must keep Y_2^2 only, to lmax 2: lmax %d, C_22 %g", got.LMax, got.C[5])
+	}
+	b, _ := Ideal(nil, Term{L: 1, M: 0, Weight: 1})
+	for _, w := range []float64{-0.5, 1.5} {
+		m, err := Blend(p, b, w)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, _ := m.WithQStar(1, Reference{QMean: 0.05})
+		if !hasWarning(r, "blend extrapolates") {
+			t.Errorf("blend weight %g: no warning in %q", w, r.Warnings)
+		}
+	}
+	m, _ := Blend(p, b, 0.5)
+	if len(m.Warnings()) != 0 {
+		t.Errorf("blend weight 0.5 drew warnings %q", m.Warnings())
+	}
+}

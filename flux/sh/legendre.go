@@ -277,17 +277,14 @@ func derivRow(dst, row []float64, l int) {
 	}
 	fl := float64(l)
 	dst[0] = -math.Sqrt(fl*(fl+1)/2) * row[1]
+	sq := sqrtFor(2*l + 2).sq
 	gm := math.Sqrt(2 * fl * (fl + 1)) // sqrt(2) g_1
-	for m := 1; m <= l; m++ {
-		fm := float64(m)
-		var up float64
-		gn := math.Sqrt((fl + fm + 1) * (fl - fm)) // g_(m+1)
-		if m < l {
-			up = gn * row[m+1]
-		}
-		dst[m] = 0.5 * (gm*row[m-1] - up)
+	for m := 1; m < l; m++ {
+		gn := sq[l+m+1] * sq[l-m] // g_(m+1)
+		dst[m] = 0.5 * (gm*row[m-1] - gn*row[m+1])
 		gm = gn
 	}
+	dst[l] = 0.5 * gm * row[l-1]
 }
 
 // UnnormalizedMaxDegree is the largest degree for which unnormalized

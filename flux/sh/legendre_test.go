@@ -233,6 +233,22 @@ func BenchmarkLegendre(b *testing.B) {
 					p = Legendre(p, lmax, colat, Canonical)
 				}
 			})
+			b.Run(fmt.Sprintf("deriv/lmax=%d/colat=%g", lmax, colat), func(b *testing.B) {
+				b.ReportAllocs()
+				p := make([]float64, NumCoeffs(lmax))
+				dp := make([]float64, NumCoeffs(lmax))
+				for b.Loop() {
+					p, dp = LegendreDeriv(p, dp, lmax, colat, Canonical)
+				}
+			})
+			b.Run(fmt.Sprintf("schmidt-cs/lmax=%d/colat=%g", lmax, colat), func(b *testing.B) {
+				b.ReportAllocs()
+				p := make([]float64, NumCoeffs(lmax))
+				conv := Convention{Norm: Schmidt, CondonShortley: true}
+				for b.Loop() {
+					p = Legendre(p, lmax, colat, conv)
+				}
+			})
 		}
 	}
 }

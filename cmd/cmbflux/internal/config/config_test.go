@@ -128,6 +128,7 @@ func TestSweepErrors(t *testing.T) {
 		{"base: {demo: true, qstar: 1}\nvary:\n  qstar: [1, 2]\n", "s.yaml:3:3: qstar: set both in base and in vary"},
 		{"base: {demo: true}\nvary:\n  qstar: []\n", "s.yaml:3:10: qstar: empty list"},
 		{"bases: {}\n", "s.yaml:1:1: unknown key \"bases\""},
+		{"base: {demo: true, out: x}\nvary: {qstar: [1]}\n", "s.yaml:1:25: out: a sweep's runs go into folders"},
 	} {
 		_, err := ParseSweep("s.yaml", []byte(tc.yaml))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

@@ -64,6 +64,9 @@ func ParseSweep(file string, data []byte) (*Sweep, error) {
 			if sw.Base, err = mappingSet(file, dir, v); err != nil {
 				return nil, err
 			}
+			if o, ok := sw.Base["out"]; ok {
+				return nil, o.errorf("out", "a sweep's runs go into folders named after them; give the sweep's folder as a top-level out: or with --out")
+			}
 		case "vary":
 			if v.Kind != yaml.MappingNode {
 				return nil, nodeErr(file, v, "vary", "expected a mapping of parameter names to lists, e.g. {qstar: [0, 1, 2]}")

@@ -435,6 +435,9 @@ func (b *builder) build() (*Grid, error) {
 			}
 		}
 	}
+	if w := poleWarning(g); w != "" {
+		g.Warnings = append(g.Warnings, w)
+	}
 	return g, nil
 }
 

@@ -437,6 +437,9 @@ func (r *ncReader) read() (*Grid, error) {
 	if nvalid < len(valid) {
 		g.Valid = valid
 	}
+	if w := poleWarning(g); w != "" {
+		g.Warnings = append(g.Warnings, w)
+	}
 	return g, nil
 }
 

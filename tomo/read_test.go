@@ -114,6 +114,8 @@ func TestReadTextAssembly(t *testing.T) {
 			name: "node global shuffled",
 			text: gridText(steps(0, 90, 4), steps(90, -45, 5), nil, fieldText, 1),
 			lon:  steps(0, 90, 4), lat: steps(-90, 45, 5), reg: NodeRegistered, fileLon: same,
+			// The synthetic field varies with longitude at the poles.
+			warnings: []string{"range from -9 to -6.3, yet they are all the south pole, one point (2 pole rows differ"},
 		},
 		{
 			// Cell registration: latitudes at half steps, no pole point.

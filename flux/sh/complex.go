@@ -24,14 +24,15 @@ func NumComplexCoeffs(lmax int) int { return (lmax + 1) * (lmax + 1) }
 //	Y_l^m = Nc_lm P_l^m(cos theta) exp(i m phi),
 //	Y_l^-m = s_m conj(Y_l^m),  s_m = (-1)^m with the Condon-Shortley phase, 1 without,
 //
-// where P_l^m includes the phase (-1)^m if Conv.CondonShortley and
-// Nc_lm = N_lm / sqrt(2 - delta_m0) is the complex normalization belonging
-// to the real one N_lm of Conv.Norm:
+// where P_l^m includes the phase (-1)^m if Conv.CondonShortley and Nc_lm
+// is the complex normalization belonging to Conv.Norm (for the normalized
+// conventions Nc_lm = N_lm / sqrt(2 - delta_m0), with N_lm the real one; the
+// unnormalized complex harmonic is P_l^m exp(i m phi) like the real one):
 //
 //	orthonormal:  Nc_lm = sqrt((2l+1)/(4 pi) (l-m)!/(l+m)!), integral of |Y|^2 = 1,
 //	fully-normalized: Nc_lm = sqrt((2l+1) (l-m)!/(l+m)!),   integral = 4 pi,
 //	schmidt:      Nc_lm = sqrt((l-m)!/(l+m)!),               integral = 4 pi/(2l+1),
-//	unnormalized: Nc_lm = 1.
+//	unnormalized: Nc_lm = 1,                                  integral = 4 pi/(2l+1) (l+m)!/(l-m)!.
 //
 // Orthonormal with the phase is the convention of SciPy's
 // scipy.special.sph_harm and of most physics texts. In both phase
@@ -80,12 +81,26 @@ func phaseSign(m int, conv Convention) float64 {
 	return 1
 }
 
+// realToComplexNorm returns kappa_m = N_lm / Nc_lm, the ratio of the real to
+// the complex normalization: 1 at m = 0 and for Unnormalized (N = Nc = 1),
+// sqrt(2) for m > 0 in the normalized conventions.
+func realToComplexNorm(m int, n Normalization) float64 {
+	if m == 0 || n == Unnormalized {
+		return 1
+	}
+	return math.Sqrt2
+}
+
 // Complex returns the complex coefficients of the real field c, in the same
 // normalization and phase convention. From cos(m phi) and sin(m phi) in terms
-// of exp(+-i m phi) and N_lm = sqrt(2) Nc_lm for m > 0:
+// of exp(+-i m phi), with kappa_m = N_lm/Nc_lm (sqrt(2) for m > 0 in the
+// normalized conventions, 1 for Unnormalized):
 //
 //	A_l0 = C_l0,
-//	A_lm = (C_lm - i S_lm) / sqrt(2),  A_l,-m = s_m conj(A_lm),  m > 0.
+//	A_lm = kappa_m (C_lm - i S_lm) / 2,  A_l,-m = s_m conj(A_lm),  m > 0,
+//
+// i.e. A_lm = (C_lm - i S_lm)/sqrt(2) except for unnormalized harmonics,
+// where it is (C_lm - i S_lm)/2.
 func (c *Coeffs) Complex() *ComplexCoeffs {
 	z := NewComplexCoeffs(c.LMax, c.Conv)
 	for l := 0; l <= c.LMax; l++ {
@@ -93,7 +108,8 @@ func (c *Coeffs) Complex() *ComplexCoeffs {
 		z.A[ComplexIndex(l, 0)] = complex(c.C[i], 0)
 		for m := 1; m <= l; m++ {
 			i := Index(l, m)
-			a := complex(c.C[i], -c.S[i]) / math.Sqrt2
+			h := realToComplexNorm(m, c.Conv.Norm) / 2
+			a := complex(h*c.C[i], -h*c.S[i])
 			z.A[ComplexIndex(l, m)] = a
 			z.A[ComplexIndex(l, -m)] = complex(phaseSign(m, c.Conv), 0) * cmplx.Conj(a)
 		}
@@ -105,9 +121,9 @@ func (c *Coeffs) Complex() *ComplexCoeffs {
 // Re f = (f + conj f)/2, in the same convention; for the coefficients of a
 // real field (A_l,-m = s_m conj(A_lm)) this is the exact inverse of
 // Coeffs.Complex. With B_lm = (A_lm + s_m conj(A_l,-m))/2, the coefficient
-// of Y_l^m in Re f:
+// of Y_l^m in Re f, and kappa_m as in Coeffs.Complex:
 //
-//	C_l0 = Re B_l0,  C_lm = sqrt(2) Re B_lm,  S_lm = -sqrt(2) Im B_lm,  m > 0.
+//	C_l0 = Re B_l0,  C_lm = (2/kappa_m) Re B_lm,  S_lm = -(2/kappa_m) Im B_lm,  m > 0.
 //
 // Use ImagPart to see how far the field is from real.
 func (z *ComplexCoeffs) Real() *Coeffs {
@@ -117,8 +133,9 @@ func (z *ComplexCoeffs) Real() *Coeffs {
 		for m := 1; m <= l; m++ {
 			b := (z.A[ComplexIndex(l, m)] + complex(phaseSign(m, z.Conv), 0)*cmplx.Conj(z.A[ComplexIndex(l, -m)])) / 2
 			i := Index(l, m)
-			c.C[i] = math.Sqrt2 * real(b)
-			c.S[i] = -math.Sqrt2 * imag(b)
+			k := 2 / realToComplexNorm(m, z.Conv.Norm)
+			c.C[i] = k * real(b)
+			c.S[i] = -k * imag(b)
 		}
 	}
 	return c
@@ -155,7 +172,8 @@ func (z *ComplexCoeffs) Convert(to Convention) (*ComplexCoeffs, error) {
 		normRow(ff, fe, l, z.Conv)
 		normRow(tf, te, l, to)
 		for m := 0; m <= l; m++ {
-			r := math.Ldexp(ff[m]/tf[m], fe[m]-te[m])
+			// Nc(from)/Nc(to) = (N(from)/N(to)) kappa_m(to)/kappa_m(from).
+			r := math.Ldexp(ff[m]/tf[m], fe[m]-te[m]) * realToComplexNorm(m, to.Norm) / realToComplexNorm(m, z.Conv.Norm)
 			i := ComplexIndex(l, m)
 			w.A[i] = mulReal(z.A[i], r)
 			if m > 0 {
@@ -178,7 +196,7 @@ func (z *ComplexCoeffs) Evaluate(colat, lon float64) complex128 {
 	for l := 0; l <= z.LMax; l++ {
 		f += z.A[ComplexIndex(l, 0)] * complex(p[Index(l, 0)], 0)
 		for m := 1; m <= l; m++ {
-			nc := p[Index(l, m)] / math.Sqrt2 // Nc P_l^m (phase included)
+			nc := p[Index(l, m)] / realToComplexNorm(m, z.Conv.Norm) // Nc P_l^m (phase included)
 			s, c := math.Sincos(float64(m) * lon)
 			e := complex(c, s)
 			f += z.A[ComplexIndex(l, m)] * complex(nc, 0) * e

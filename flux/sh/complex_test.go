@@ -137,3 +137,68 @@ func TestComplexRealRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestComplexNormalization integrates |Y_l^m|^2 over the sphere by exact
+// quadrature and compares with the integrals stated for each convention in
+// the ComplexCoeffs documentation (orthonormal 1, fully-normalized 4 pi,
+// Schmidt 4 pi/(2l+1), unnormalized 4 pi/(2l+1) (l+m)!/(l-m)!, from the
+// Ferrers-function integral 2/(2l+1) (l+m)!/(l-m)!, A&S 8.14.13, from memory),
+// and checks orthogonality of different harmonics.
+func TestComplexNormalization(t *testing.T) {
+	const lmax = 5
+	for _, conv := range allConventions {
+		ys := map[[2]int]*ComplexCoeffs{}
+		for l := 0; l <= lmax; l++ {
+			for m := -l; m <= l; m++ {
+				z := NewComplexCoeffs(l, conv)
+				z.Set(l, m, 1)
+				ys[[2]int{l, m}] = z
+			}
+		}
+		for k, z := range ys {
+			l, m := k[0], k[1]
+			re := sphereQuad(lmax, func(th, ph float64) float64 { v := z.Evaluate(th, ph); return real(v) * real(v) })
+			im := sphereQuad(lmax, func(th, ph float64) float64 { v := z.Evaluate(th, ph); return imag(v) * imag(v) })
+			got := re + im
+			am := m
+			if am < 0 {
+				am = -am
+			}
+			var want float64
+			switch conv.Norm {
+			case Orthonormal:
+				want = 1
+			case FourPi:
+				want = 4 * math.Pi
+			case Schmidt:
+				want = 4 * math.Pi / float64(2*l+1)
+			case Unnormalized:
+				want = 4 * math.Pi / float64(2*l+1) * math.Gamma(float64(l+am+1)) / math.Gamma(float64(l-am+1))
+			}
+			if math.Abs(got/want-1) > 1e-13 {
+				t.Errorf("%v: integral of |Y_%d^%d|^2 = %.15g, want %.15g", conv, l, m, got, want)
+			}
+		}
+		// Orthogonality of a few pairs: integral of Y_a conj(Y_b) = 0.
+		for _, pr := range [][2][2]int{{{2, 1}, {2, -1}}, {{3, 2}, {1, 1}}, {{4, -3}, {4, 3}}, {{2, 0}, {4, 0}}} {
+			a, b := ys[pr[0]], ys[pr[1]]
+			re := sphereQuad(lmax, func(th, ph float64) float64 {
+				return real(a.Evaluate(th, ph) * cmplx.Conj(b.Evaluate(th, ph)))
+			})
+			im := sphereQuad(lmax, func(th, ph float64) float64 {
+				return imag(a.Evaluate(th, ph) * cmplx.Conj(b.Evaluate(th, ph)))
+			})
+			na := sphereQuad(lmax, func(th, ph float64) float64 { v := cmplx.Abs(a.Evaluate(th, ph)); return v * v })
+			nb := sphereQuad(lmax, func(th, ph float64) float64 { v := cmplx.Abs(b.Evaluate(th, ph)); return v * v })
+			if math.Hypot(re, im) > 1e-13*math.Sqrt(na*nb) {
+				t.Errorf("%v: Y%v and Y%v not orthogonal: %v %v", conv, pr[0], pr[1], re, im)
+			}
+		}
+	}
+	// Unnormalized, no phase: Y_1^1(pi/2, 0) = P_1^1(0) = 1 (A&S 8.6.6 form).
+	z := NewComplexCoeffs(1, Convention{Norm: Unnormalized})
+	z.Set(1, 1, 1)
+	if v := z.Evaluate(math.Pi/2, 0); cmplx.Abs(v-1) > 1e-15 {
+		t.Errorf("unnormalized Y_1^1(pi/2, 0) = %v, want 1", v)
+	}
+}

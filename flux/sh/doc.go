@@ -35,12 +35,13 @@
 // Coefficients convert as C(to) = C(from) N(from)/N(to) (Coeffs.Convert).
 //
 // The complex form (ComplexCoeffs) uses Y_l^m = Nc_lm P_l^m(cos theta)
-// exp(i m phi) for m >= 0 with Nc_lm = N_lm / sqrt(2 - delta_m0), and
+// exp(i m phi) for m >= 0 with Nc_lm = N_lm / sqrt(2 - delta_m0) in the
+// normalized conventions and Nc_lm = 1 in the unnormalized one, and
 // Y_l^-m = (-1)^m conj(Y_l^m) with the Condon-Shortley phase (SciPy's
 // scipy.special.sph_harm), Y_l^-m = conj(Y_l^m) without it. The complex
-// coefficients of a real field are A_l0 = C_l0 and
-// A_lm = (C_lm - i S_lm)/sqrt(2), A_l,-m = s_m conj(A_lm) for m > 0, with
-// s_m = (-1)^m or 1 as above.
+// coefficients of a real field are A_l0 = C_l0 and, for m > 0,
+// A_lm = (C_lm - i S_lm)/sqrt(2) (normalized) or (C_lm - i S_lm)/2
+// (unnormalized), with A_l,-m = s_m conj(A_lm), s_m = (-1)^m or 1 as above.
 //
 // Power spectra and correlations are computed on orthonormal coefficients
 // whatever the stored convention: S_l = sum_m (C_lm^2 + S_lm^2) sums over

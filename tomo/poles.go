@@ -5,8 +5,8 @@ import (
 	"math"
 )
 
-// poleTol is the spread, relative to the largest magnitude of a level's
-// valid values, above which the values of a pole row count as different
+// poleTol is the spread, relative to the largest magnitude of the valid
+// values on the pole row and the row next to it, above which the values of a pole row count as different
 // (common practice: well above the rounding of values printed with four
 // or more significant digits).
 const poleTol = 1e-3
@@ -24,14 +24,6 @@ func poleWarning(g *Grid) string {
 	}
 	worst, wk, wlat, wlo, whi, rows := 0.0, 0, 0.0, 0.0, 0.0, 0
 	for k := range g.NDepth() {
-		scale := 0.0
-		for j := range g.Lat {
-			for i := range nlon {
-				if v, ok := g.At(k, j, i); ok {
-					scale = math.Max(scale, math.Abs(v))
-				}
-			}
-		}
 		for j, lat := range g.Lat {
 			if lat != 90 && lat != -90 {
 				continue
@@ -42,7 +34,27 @@ func poleWarning(g *Grid) string {
 					lo, hi, n = math.Min(lo, v), math.Max(hi, v), n+1
 				}
 			}
-			if n < 2 || !(hi-lo > poleTol*scale) {
+			if n < 2 || !(hi > lo) {
+				continue
+			}
+			// The scale: the largest magnitude on the pole row and the
+			// row next to it (O(nlon), not a pass over the level).
+			next := j + 1
+			if lat > 0 {
+				next = j - 1
+			}
+			scale := 0.0
+			for _, jj := range []int{j, next} {
+				if jj < 0 || jj >= len(g.Lat) {
+					continue
+				}
+				for i := range nlon {
+					if v, ok := g.At(k, jj, i); ok {
+						scale = math.Max(scale, math.Abs(v))
+					}
+				}
+			}
+			if !(hi-lo > poleTol*scale) {
 				continue
 			}
 			rows++

@@ -2,6 +2,7 @@ package sh
 
 import (
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -143,4 +144,34 @@ func (c *Coeffs) Truncate(lmax int) *Coeffs {
 	copy(d.C, c.C[:n])
 	copy(d.S, c.S[:n])
 	return d
+}
+
+// Validate reports the first inconsistency of c as an error, or nil: a
+// negative LMax, C or S of a length other than NumCoeffs(LMax), a nonzero
+// sine coefficient at m = 0, a coefficient that is NaN or infinite, or a
+// degree its convention cannot represent (see Convention.CheckDegree).
+// Readers of coefficient files should call it before handing c on.
+func (c *Coeffs) Validate() error {
+	if c.LMax < 0 {
+		return fmt.Errorf("sh: coefficients with negative lmax %d", c.LMax)
+	}
+	n := NumCoeffs(c.LMax)
+	if len(c.C) != n || len(c.S) != n {
+		return fmt.Errorf("sh: coefficients up to degree %d need %d cosine and sine values, have %d and %d", c.LMax, n, len(c.C), len(c.S))
+	}
+	if err := c.Conv.CheckDegree(c.LMax); err != nil {
+		return err
+	}
+	for l := 0; l <= c.LMax; l++ {
+		for m := 0; m <= l; m++ {
+			i := Index(l, m)
+			if math.IsNaN(c.C[i]) || math.IsInf(c.C[i], 0) || math.IsNaN(c.S[i]) || math.IsInf(c.S[i], 0) {
+				return fmt.Errorf("sh: coefficient (l, m) = (%d, %d) is not finite: %v, %v", l, m, c.C[i], c.S[i])
+			}
+			if m == 0 && c.S[i] != 0 {
+				return fmt.Errorf("sh: sine coefficient at (l, m) = (%d, 0) is %v; it must be 0 (sin(0 phi) = 0)", l, c.S[i])
+			}
+		}
+	}
+	return nil
 }

@@ -6,9 +6,9 @@ import (
 )
 
 // poleTol is the spread, relative to the largest magnitude of the valid
-// values on the pole row and the row next to it, above which the values of a pole row count as different
-// (common practice: well above the rounding of values printed with four
-// or more significant digits).
+// values on the pole row and the row next to it, above which the values
+// of a pole row count as different (common practice: well above the
+// rounding of values printed with four or more significant digits).
 const poleTol = 1e-3
 
 // poleWarning returns a warning when a grid row at latitude -90 or 90

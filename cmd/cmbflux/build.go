@@ -94,7 +94,7 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 	// half-written folder.
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	sum, err := buildFolder(ctx, newCache(), sp, sp.Out, o.force, false, set)
+	sum, err := buildFolderCmd(ctx, newCache(), sp, sp.Out, o.force, false, set, commandLine("build", args))
 	if err != nil {
 		if ctx.Err() != nil {
 			return fmt.Errorf("interrupted; nothing was written to %s", sp.Out)
@@ -116,6 +116,12 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 // With noSync the files are not synced to disk one by one (see
 // outdir.Stage.NoSync); sweeps use it and verify manifests on resume.
 func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, force, noSync bool, set config.Set) (*Summary, error) {
+	return buildFolderCmd(ctx, c, sp, out, force, noSync, set, "")
+}
+
+// buildFolderCmd is buildFolder recording command, the command line or
+// sweep point that made the folder, in its manifest.
+func buildFolderCmd(ctx context.Context, c *cache, sp *config.Spec, out string, force, noSync bool, set config.Set, command string) (*Summary, error) {
 	if err := checkForce(out, force); err != nil {
 		return nil, err
 	}
@@ -125,7 +131,7 @@ func buildFolder(ctx context.Context, c *cache, sp *config.Spec, out string, for
 	}
 	st.NoSync = noSync
 	defer st.Abort()
-	sum, err := produce(ctx, c, sp, set, st)
+	sum, err := produce(ctx, c, sp, set, st, command)
 	if err != nil {
 		return nil, err
 	}
@@ -192,4 +198,22 @@ func checkForce(dir string, force bool) error {
 		}
 	}
 	return fmt.Errorf("%s: %w and was not written by cmbflux (no manifest.yaml or runs.tsv in it): --force replaces only cmbflux output folders; remove it yourself or choose another --out", dir, outdir.ErrNotEmpty)
+}
+
+// commandLine quotes args for the manifest's record of what was run.
+func commandLine(cmd string, args []string) string {
+	parts := []string{"cmbflux", cmd}
+	for _, a := range args {
+		parts = append(parts, shellQuote(a))
+	}
+	return strings.Join(parts, " ")
+}
+
+// shellQuote returns a in single quotes when a shell would otherwise split
+// or expand it.
+func shellQuote(a string) string {
+	if a != "" && !strings.ContainsAny(a, " \t\n'\"\\$`*?[]{}()<>|&;#~") {
+		return a
+	}
+	return "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
 }

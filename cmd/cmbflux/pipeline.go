@@ -359,7 +359,7 @@ func fmtMW(v *float64) string {
 
 // produce runs the pipeline for one build and writes its files into st,
 // manifest last.
-func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st *outdir.Stage) (*Summary, error) {
+func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st *outdir.Stage, command string) (*Summary, error) {
 	src, err := c.source(sp)
 	if err != nil {
 		return nil, err
@@ -416,7 +416,7 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 		}
 	}
 	man, err := buildManifest(st.Tmp, append(append([]string(nil), files...), "summary.json"), params,
-		export.ManifestInput{Name: src.name, SHA256: src.sha256, Format: src.format}, s)
+		export.ManifestInput{Name: src.name, SHA256: src.sha256, Format: src.format}, s, command)
 	if err != nil {
 		return nil, err
 	}

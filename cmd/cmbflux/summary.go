@@ -98,8 +98,8 @@ func marshalJSON(v any) ([]byte, error) {
 // buildManifest lists the files of dir with their hashes, the parameters
 // and the input, in the format of export.Manifest. It holds no timestamp, so
 // a rebuilt folder is byte-for-byte the same.
-func buildManifest(dir string, names []string, params map[string]string, in export.ManifestInput, s *Summary) ([]byte, error) {
-	m := &export.Manifest{Version: version, Inputs: []export.ManifestInput{in}, Params: params,
+func buildManifest(dir string, names []string, params map[string]string, in export.ManifestInput, s *Summary, command string) ([]byte, error) {
+	m := &export.Manifest{Version: version, Command: command, Inputs: []export.ManifestInput{in}, Params: params,
 		Diagnostics: map[string]any{"qstar": s.QStar, "area_fraction_negative": s.AreaNegative, "lmax": s.LMax}}
 	if s.AreaSubadiabatic != nil {
 		m.Diagnostics["area_fraction_subadiabatic"] = *s.AreaSubadiabatic

@@ -178,7 +178,8 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 					results[i].err = err
 					continue
 				}
-				_, err := buildFolder(ctx, c, specs[i], dir, false, true, pts[i].Set)
+				_, err := buildFolderCmd(ctx, c, specs[i], dir, false, true, pts[i].Set,
+					fmt.Sprintf("cmbflux sweep %s --only %d (run %s)", shellQuote(name), i, pts[i].Name))
 				results[i].err = err
 				if err == nil {
 					bar.Done(false)

@@ -54,12 +54,19 @@ const (
 // Taper is a degree-dependent weight w_l applied to the coefficients of
 // degree l (a zonal, i.e. isotropic, filter). The zero value is NoTaper.
 // The fields used depend on Kind: L (CutTaper), L1 < L2 (CosineTaper),
-// HalfWidth in degrees of arc, 0 < HalfWidth <= 180 (GaussTaper).
+// HalfWidth in degrees of arc, MinHalfWidth <= HalfWidth <= 180
+// (GaussTaper).
 type Taper struct {
 	Kind      TaperKind
 	L, L1, L2 int
 	HalfWidth float64
 }
+
+// MinHalfWidth is the smallest accepted Gaussian half-width, in degrees of
+// arc (0.6 km on the core-mantle boundary). Narrower kernels change
+// nothing a tomography model resolves (at 0.01 degrees w_l > 0.999 up to
+// degree 300, from w_l ~ exp(-l(l+1)/(2b))); use no taper instead.
+const MinHalfWidth = 0.01
 
 // ParseTaper reads a taper from the command-line forms
 //
@@ -121,8 +128,8 @@ func ParseTaper(s string) (Taper, error) {
 			return bad("gauss takes one half-width in degrees")
 		}
 		w, err := strconv.ParseFloat(f[1], 64)
-		if err != nil || !(w > 0 && w <= 180) {
-			return bad(fmt.Sprintf("half-width %q must be a number of degrees in (0, 180]", f[1]))
+		if err != nil || !(w >= MinHalfWidth && w <= 180) {
+			return bad(fmt.Sprintf("half-width %q must be a number of degrees from %g to 180 (use none for no smoothing)", f[1], MinHalfWidth))
 		}
 		return Taper{Kind: GaussTaper, HalfWidth: w}, nil
 	}
@@ -157,8 +164,8 @@ func (t Taper) validate() {
 			panic("sh: cosine taper needs 0 <= L1 < L2")
 		}
 	case GaussTaper:
-		if !(t.HalfWidth > 0 && t.HalfWidth <= 180) {
-			panic("sh: Gaussian taper needs 0 < HalfWidth <= 180 degrees")
+		if !(t.HalfWidth >= MinHalfWidth && t.HalfWidth <= 180) {
+			panic("sh: Gaussian taper needs MinHalfWidth <= HalfWidth <= 180 degrees")
 		}
 	default:
 		panic(fmt.Sprintf("sh: unknown taper kind %d", int(t.Kind)))
@@ -246,6 +253,7 @@ func GaussianB(halfWidth float64) float64 {
 // by t's weight w_l. Because the weight depends on degree only, the result
 // does not depend on the convention c is stored in. A CutTaper below LMax
 // leaves LMax unchanged (the cut degrees are zero); use Truncate to shorten.
+// It panics if the taper is invalid (see Taper).
 func (c *Coeffs) Filtered(t Taper) *Coeffs {
 	w := t.Weights(nil, c.LMax)
 	d := c.Clone()

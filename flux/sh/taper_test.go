@@ -19,6 +19,7 @@ func TestParseTaper(t *testing.T) {
 		{"cos:8:12", Taper{Kind: CosineTaper, L1: 8, L2: 12}},
 		{"gauss:7.5", Taper{Kind: GaussTaper, HalfWidth: 7.5}},
 		{"gauss:180", Taper{Kind: GaussTaper, HalfWidth: 180}},
+		{"gauss:0.01", Taper{Kind: GaussTaper, HalfWidth: MinHalfWidth}},
 	} {
 		got, err := ParseTaper(tc.in)
 		if err != nil || got != tc.want {
@@ -28,7 +29,7 @@ func TestParseTaper(t *testing.T) {
 			t.Errorf("ParseTaper(%q.String() = %q) = %+v, %v", tc.in, got.String(), back, err)
 		}
 	}
-	for _, in := range []string{"", "none:3", "cut", "cut:-1", "cut:x", "cos:12:8", "cos:5:5", "cos:1", "gauss:0", "gauss:-2", "gauss:200", "gauss:NaN", "gauss", "boxcar:3"} {
+	for _, in := range []string{"", "none:3", "cut", "cut:-1", "cut:x", "cos:12:8", "cos:5:5", "cos:1", "gauss:0", "gauss:-2", "gauss:200", "gauss:NaN", "gauss:1e-320", "gauss:0.001", "gauss", "boxcar:3"} {
 		_, err := ParseTaper(in)
 		if err == nil {
 			t.Errorf("ParseTaper(%q): no error", in)
@@ -41,7 +42,7 @@ func TestParseTaper(t *testing.T) {
 }
 
 func FuzzParseTaper(f *testing.F) {
-	for _, s := range []string{"none", "cut:3", "cos:8:12", "gauss:10", "gauss:1e-3", "cos:0:1"} {
+	for _, s := range []string{"none", "cut:3", "cos:8:12", "gauss:10", "gauss:0.01", "cos:0:1", "gauss:1e-320"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {

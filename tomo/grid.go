@@ -55,8 +55,11 @@ type Grid struct {
 	// variable); Units its units as given ("percent", "fraction", "km/s", or
 	// the file's own string).
 	Name, Units string
-	Reg         Registration
-	Source      Provenance
+	// Reg is the registration detected from the coordinates (see the
+	// package notes); use Lon and Lat themselves for the geometry.
+	Reg Registration
+	// Source records where the grid came from.
+	Source Provenance
 	// Title is a one-line description of the model (from a "# title:"
 	// comment, a netCDF title attribute, or the demo's name); "" if none.
 	Title string

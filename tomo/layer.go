@@ -19,7 +19,8 @@ type Layer struct {
 	Values   []float64 // dlnVs as a fraction
 	// Valid marks the points with data; nil means every point is valid.
 	Valid []bool
-	Reg   Registration
+	// Reg is the registration of the grid the layer came from.
+	Reg Registration
 	// Depths lists the depth levels used (km) and Weights their weights,
 	// which sum to 1. A grid without a depth axis gives Depths == nil and
 	// Weights == []float64{1}.
@@ -33,7 +34,8 @@ type Layer struct {
 	// of the layer (Units.Min and Units.Max are over the whole grid).
 	Min, Max float64
 	// Units reports how the values were converted to dlnVs.
-	Units  *UnitReport
+	Units *UnitReport
+	// Source records where the grid came from.
 	Source Provenance
 	// Title is the grid's title, if any.
 	Title string

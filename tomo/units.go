@@ -58,7 +58,10 @@ type UnitReport struct {
 	Min, Max float64
 	// Mean is the area-weighted mean dlnVs (fraction) over all valid
 	// points of all levels; it is reported, never removed.
-	Mean     float64
+	Mean float64
+	// Warnings lists what the conversion found suspicious (an unused
+	// reference velocity, values beyond the plausible range accepted
+	// because forced).
 	Warnings []string
 }
 

@@ -9,8 +9,8 @@ import (
 // Dim is a named dimension. Len == 0 marks the record (unlimited)
 // dimension, whose current length is File.NumRecs; a file has at most one.
 type Dim struct {
-	Name string
-	Len  int64
+	Name string // the dimension's name
+	Len  int64  // its length; 0 for the record dimension
 }
 
 // Attr is a named attribute. Value holds the values as a Go slice of the
@@ -19,9 +19,9 @@ type Dim struct {
 // []uint16 for UShort, []uint32 for UInt, []int64 for Int64, []uint64 for
 // UInt64), except that a Char attribute holds a string.
 type Attr struct {
-	Name  string
-	Type  Type
-	Value any
+	Name  string // the attribute's name
+	Type  Type   // its external type
+	Value any    // its values (see above)
 }
 
 // Text returns the value of a Char attribute, or "" for other types.
@@ -61,11 +61,11 @@ func (a *Attr) Float64s() []float64 {
 // []byte or string), all records included. A decoded File leaves Data nil
 // and reads values on demand with File.Float64s or File.Values.
 type Var struct {
-	Name  string
-	Dims  []string
-	Type  Type
-	Attrs []Attr
-	Data  any
+	Name  string   // the variable's name
+	Dims  []string // dimension names, slowest varying first
+	Type  Type     // the external type
+	Attrs []Attr   // attributes, in file order
+	Data  any      // values for Encode (see above); nil when decoded
 
 	begin int64 // offset of the data (first record for record variables)
 	vsize int64 // bytes per variable (per record for record variables), unpadded
@@ -118,9 +118,9 @@ type File struct {
 	// Version is the format the file was decoded from; Encode takes the
 	// version as an argument and ignores this field.
 	Version Version
-	Dims    []Dim
-	Attrs   []Attr
-	Vars    []*Var
+	Dims    []Dim  // dimensions, in file order
+	Attrs   []Attr // global attributes, in file order
+	Vars    []*Var // variables, in file order
 	// NumRecs is the number of records (the current length of the record
 	// dimension). Encode computes it from the data of record variables.
 	NumRecs int64

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -360,5 +361,37 @@ func TestLmaxAboveResolutionWarns(t *testing.T) {
 	s := loadSummary(t, "bc")
 	if s.LMaxResolved >= 8 || !strings.Contains(errs, "lmax above the resolution") || !strings.Contains(strings.Join(s.Warnings, "\n"), "lmax above the resolution") {
 		t.Errorf("resolved degree %d; stderr:\n%s", s.LMaxResolved, errs)
+	}
+}
+
+func TestConvertPlainTableNormalizations(t *testing.T) {
+	t.Chdir(t.TempDir())
+	// A Schmidt semi-normalized table with C_10 = C_11 = 1. Schmidt harmonics
+	// have integral 4 pi/(2l+1) of Y^2 and orthonormal ones 1 (references
+	// sheet), so the orthonormal coefficients are sqrt(4 pi/3) =
+	// 2.0466534158929770 for both; with the Condon-Shortley phase written the
+	// order-1 coefficient changes sign ((-1)^m).
+	writeFile(t, "plain.txt", "1 0 1 0\n1 1 1 0\n")
+	out, errs := mustCLI(t, "convert", "plain.txt", "--from-norm", "schmidt", "--condon-shortley", "--out", "-")
+	if !strings.Contains(errs, "non-default convention") {
+		t.Errorf("no convention reminder: %q", errs)
+	}
+	want := map[string]float64{"1 0": 2.0466534158929770, "1 1": -2.0466534158929770}
+	got := 0
+	for _, line := range strings.Split(out, "\n") {
+		f := strings.Fields(line)
+		if len(f) != 4 || strings.HasPrefix(line, "#") {
+			continue
+		}
+		if w, ok := want[f[0]+" "+f[1]]; ok {
+			var v float64
+			if _, err := fmt.Sscan(f[2], &v); err != nil || math.Abs(v-w) > 1e-12 {
+				t.Errorf("l m = %s %s: %s, want %.16g", f[0], f[1], f[2], w)
+			}
+			got++
+		}
+	}
+	if got != 2 {
+		t.Errorf("found %d of the 2 rows in\n%s", got, out)
 	}
 }

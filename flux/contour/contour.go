@@ -564,11 +564,22 @@ func (s *Surface) meridianCut(i, j int, c float64) edgeCut {
 		d0, d1 = s.dp[k0]*dl, s.dp[k1]*dl
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	n, ts, split := edgeRoots(f0, f1, d0, d1, s.herm[i], s.rootTol())
-	if s.d2p != nil && s.herm[i] && n > 0 {
+	var n int
+	var ts [2]float64
+	var split float64
+	if s.d2p != nil && s.herm[i] && (f0 < 0) != (f1 < 0) {
+		// One crossing: the quintic's root directly, from the linear
+		// estimate (the cubic's root would only be a better start).
 		dl := s.lat[i+1] - s.lat[i]
 		q := newQuintic(f0, f1, d0, d1, s.d2p[k0]*dl*dl, s.d2p[k1]*dl*dl)
-		n, ts = q.cut(n, ts, split)
+		n, ts[0], split = 1, q.root(f0/(f0-f1), 0, 1), 1
+	} else {
+		n, ts, split = edgeRoots(f0, f1, d0, d1, s.herm[i], s.rootTol())
+		if s.d2p != nil && s.herm[i] && n > 0 {
+			dl := s.lat[i+1] - s.lat[i]
+			q := newQuintic(f0, f1, d0, d1, s.d2p[k0]*dl*dl, s.d2p[k1]*dl*dl)
+			n, ts = q.cut(n, ts, split)
+		}
 	}
 	e.n = n
 	if s.lines != nil && n > 0 {
@@ -596,10 +607,18 @@ func (s *Surface) parallelCut(i, j int, c float64) edgeCut {
 		d0, d1 = s.dv[k0]*s.dlon, s.dv[k1]*s.dlon
 	}
 	f0, f1 := s.v[k0]-c, s.v[k1]-c
-	n, ts, split := edgeRoots(f0, f1, d0, d1, herm, s.rootTol())
-	if s.d2v != nil && herm && n > 0 {
+	var n int
+	var ts [2]float64
+	var split float64
+	if s.d2v != nil && herm && (f0 < 0) != (f1 < 0) {
 		q := newQuintic(f0, f1, d0, d1, s.d2v[k0]*s.dlon*s.dlon, s.d2v[k1]*s.dlon*s.dlon)
-		n, ts = q.cut(n, ts, split)
+		n, ts[0], split = 1, q.root(f0/(f0-f1), 0, 1), 1
+	} else {
+		n, ts, split = edgeRoots(f0, f1, d0, d1, herm, s.rootTol())
+		if s.d2v != nil && herm && n > 0 {
+			q := newQuintic(f0, f1, d0, d1, s.d2v[k0]*s.dlon*s.dlon, s.d2v[k1]*s.dlon*s.dlon)
+			n, ts = q.cut(n, ts, split)
+		}
 	}
 	e.n = n
 	if s.lines != nil && herm && n > 0 && s.src[i] >= 0 {

@@ -3,6 +3,7 @@ package sh
 import (
 	"fmt"
 	"math"
+	"sync"
 	"sync/atomic"
 )
 
@@ -287,6 +288,10 @@ func derivRow(dst, row []float64, l int) {
 	dst[l] = 0.5 * gm * row[l-1]
 }
 
+// plmPool recycles generators (and their per-order buffers) between calls
+// of Legendre and LegendreDeriv.
+var plmPool = sync.Pool{New: func() any { return new(plm) }}
+
 // UnnormalizedMaxDegree is the largest degree for which unnormalized
 // (Ferrers) functions and coefficients are representable in double
 // precision for every order: the conversion factor to orthonormal,
@@ -435,7 +440,8 @@ func legendre(dst, ddst []float64, lmax int, colat float64, conv Convention, der
 		}
 		ddst = ddst[:n]
 	}
-	var g plm
+	g := plmPool.Get().(*plm)
+	defer plmPool.Put(g)
 	g.reset(lmax, colat)
 	var f []float64
 	var fe []int
@@ -456,7 +462,7 @@ func legendre(dst, ddst []float64, lmax int, colat float64, conv Convention, der
 		normRow(f, fe, l, conv)
 		if conv.Norm == Unnormalized {
 			if deriv {
-				unnormDeriv(ddst[i0:i0+l+1], &g, f, fe, l)
+				unnormDeriv(ddst[i0:i0+l+1], g, f, fe, l)
 			}
 			for m := 0; m <= l; m++ {
 				row[m] = g.value(m, f[m], fe[m])

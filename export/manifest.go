@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/debug"
 	"sort"
 	"strings"
 
@@ -36,6 +37,14 @@ type Manifest struct {
 	// the Go specification lets compilers fuse multiply-adds, which gc does
 	// on some architectures (arm64, ppc64le, s390x), changing last bits.
 	Platform string `yaml:"platform"`
+	// Revision is the version-control revision of the source the tool
+	// was built from, "+modified" appended when the tree had uncommitted
+	// changes, filled by Encode when empty from the build information the
+	// go command stamps into binaries built in a repository
+	// (runtime/debug.ReadBuildInfo: vcs.revision, vcs.modified). It is
+	// omitted when unknown (test binaries, builds outside a repository);
+	// with Version and Platform it names the program that made the files.
+	Revision string `yaml:"revision,omitempty"`
 	// Created is an optional time stamp (RFC 3339), for people only: it
 	// plays no part in Verify.
 	Created string `yaml:"created,omitempty"`
@@ -109,6 +118,11 @@ func (m *Manifest) Encode(w io.Writer) error {
 	c.Format = manifestFormat
 	if c.Platform == "" {
 		c.Platform = runtime.Version() + " " + runtime.GOOS + "/" + runtime.GOARCH
+	}
+	if c.Revision == "" {
+		if bi, ok := debug.ReadBuildInfo(); ok {
+			c.Revision = revisionOf(bi)
+		}
 	}
 	c.Files = append([]ManifestFile(nil), m.Files...)
 	sort.Slice(c.Files, func(i, j int) bool { return c.Files[i].Name < c.Files[j].Name })
@@ -250,4 +264,22 @@ func Verify(dir string) (*Manifest, error) {
 		}
 	}
 	return m, errors.Join(errs...)
+}
+
+// revisionOf returns the revision recorded in bi ("" when there is none),
+// with "+modified" when the source tree had uncommitted changes.
+func revisionOf(bi *debug.BuildInfo) string {
+	rev, modified := "", false
+	for _, s := range bi.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			modified = s.Value == "true"
+		}
+	}
+	if rev != "" && modified {
+		rev += "+modified"
+	}
+	return rev
 }

@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime/debug"
 	"strings"
 	"testing"
 
@@ -193,5 +194,40 @@ func TestWriteFilesByExtension(t *testing.T) {
 		if tab, err := ReadGridFile(p); err != nil || !sameBits(tab.Grid.Values, testGrid().Values) {
 			t.Errorf("%s: %v", name, err)
 		}
+	}
+}
+
+// TestManifestRevision checks the revision taken from the build
+// information (keys vcs.revision and vcs.modified, documented in the
+// runtime/debug package) and that a given Revision is written and read
+// back.
+func TestManifestRevision(t *testing.T) {
+	for _, tc := range []struct {
+		settings []debug.BuildSetting
+		want     string
+	}{
+		{nil, ""},
+		{[]debug.BuildSetting{{Key: "vcs.revision", Value: "0123abc"}, {Key: "vcs.modified", Value: "false"}}, "0123abc"},
+		{[]debug.BuildSetting{{Key: "vcs.modified", Value: "true"}, {Key: "vcs.revision", Value: "0123abc"}}, "0123abc+modified"},
+		{[]debug.BuildSetting{{Key: "vcs.modified", Value: "true"}}, ""},
+	} {
+		if got := revisionOf(&debug.BuildInfo{Settings: tc.settings}); got != tc.want {
+			t.Errorf("revisionOf(%v) = %q, want %q", tc.settings, got, tc.want)
+		}
+	}
+	m := &Manifest{Version: "v", Revision: "feedbeef+modified"}
+	var b bytes.Buffer
+	if err := m.Encode(&b); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "\nrevision: feedbeef+modified\n") {
+		t.Errorf("revision not written:\n%s", b.String())
+	}
+	back, err := ReadManifest(&b, "m.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Revision != m.Revision {
+		t.Errorf("read back revision %q", back.Revision)
 	}
 }

@@ -181,8 +181,9 @@ func ParseMeasure(s string) (Measure, error) {
 }
 
 // WithMeasure builds the boundary condition whose heterogeneity measure m
-// equals value; the extrema (continuous, or on the grid of MeasuredOn) and
-// the rms come from the Pattern, so a sweep costs little per point. Results
+// equals value; the extrema (continuous, or on the grid of MeasuredOn, for
+// all three extremum measures) and the rms (always of the continuous field)
+// come from the Pattern, so a sweep costs little per point. Results
 // set by a measure other than PeakToPeak say so in
 // Diagnostics.AmplitudeSetBy and warn, since simulation codes usually quote
 // the peak-to-peak q*.
@@ -206,7 +207,7 @@ func (p *Pattern) WithMeasure(m Measure, value float64, ref Reference) (*Result,
 	case RMS:
 		unit = p.rms
 	case MaxDeviation:
-		unit = math.Max(p.max.value, -p.min.value)
+		unit = math.Max(p.refMax, -p.refMin)
 	default:
 		return nil, fmt.Errorf("%w: unknown measure %d", ErrSetting, int(m))
 	}

@@ -25,11 +25,14 @@ type Diagnostics struct {
 	QStarMeasuredOn string `json:"qstar_measured_on"`
 	// QStarContinuous is q* of the continuous band-limited field exported.
 	QStarContinuous float64 `json:"qstar_continuous"`
-	// QStarSuperadiabatic is (q_max - q_min) / (q_mean - q_ad).
+	// QStarSuperadiabatic is (q_max - q_min) / (q_mean - q_ad) of the
+	// continuous field.
 	QStarSuperadiabatic *float64 `json:"qstar_superadiabatic,omitempty"`
-	// RMSOverMean is the root mean square of q - q_mean over q_mean.
+	// RMSOverMean is the root mean square of q - q_mean over q_mean (over
+	// the sphere, of the continuous field).
 	RMSOverMean float64 `json:"rms_over_mean"`
-	// MaxDeviationOverMean is max |q - q_mean| / q_mean.
+	// MaxDeviationOverMean is max |q - q_mean| / q_mean of the continuous
+	// field.
 	MaxDeviationOverMean float64 `json:"max_deviation_over_mean"`
 	// FluxUnits names the unit of the flux entries, "mW/m^2".
 	FluxUnits string `json:"flux_units"`

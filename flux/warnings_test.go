@@ -65,3 +65,42 @@ func TestWastefulSettingWarnings(t *testing.T) {
 		t.Errorf("blend weight 0.5 drew warnings %q", m.Warnings())
 	}
 }
+
+func TestMeasuresOnGrid(t *testing.T) {
+	// With q* measured on a grid, every extremum measure is measured there
+	// too. Y_2^2c = N sin^2 cos 2lon (closed form) on the grid of
+	// TestMeasuredOnGrid (longitudes 15 + 30 k, the equator) reaches
+	// +-N cos 30 deg, so the continuous field's measures are those set on
+	// the grid over cos 30 deg, and the grid warning is given.
+	p, _ := Ideal(nil, Term{L: 2, M: 2, Weight: 1})
+	g := &SampleGrid{Name: "offset 30-degree grid", Lat: []float64{-60, -30, 0, 30, 60}}
+	for lon := 15.0; lon < 360; lon += 30 {
+		g.Lon = append(g.Lon, lon)
+	}
+	pg, err := p.MeasuredOn(g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c30 := math.Cos(30 / rad2deg)
+	ref := Reference{QMean: 0.05, QAd: 0.02}
+	for _, tc := range []struct {
+		m          Measure
+		value      float64
+		continuous func(d Diagnostics) float64
+	}{
+		{PeakToPeak, 2, func(d Diagnostics) float64 { return d.QStarContinuous }},
+		{PeakToPeakSuperadiabatic, 2, func(d Diagnostics) float64 { return *d.QStarSuperadiabatic }},
+		{MaxDeviation, 0.6, func(d Diagnostics) float64 { return d.MaxDeviationOverMean }},
+	} {
+		r, err := pg.WithMeasure(tc.m, tc.value, ref)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := tc.continuous(r.Diagnostics); !near(got, tc.value/c30, 1e-8) {
+			t.Errorf("%s = %g on the grid: continuous field %g, want %g", tc.m, tc.value, got, tc.value/c30)
+		}
+		if !hasWarning(r, "measured on grid") {
+			t.Errorf("%s: no grid warning in %q", tc.m, r.Warnings)
+		}
+	}
+}

@@ -21,6 +21,7 @@ import (
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/cmd/cmbflux/internal/outdir"
 	"cmbflux/cmd/cmbflux/internal/progress"
+	htmlreport "cmbflux/export/report"
 
 	"golang.org/x/term"
 )
@@ -465,10 +466,110 @@ func writeSweepSummary(out string, sw *config.Sweep, pts []config.Point) (bool, 
 	if err != nil {
 		return false, err
 	}
+	var fig []byte
 	if sf := sweepFigure("sweep "+filepath.Base(sw.File), "qstar", pts, sums); sf != nil {
-		if err := outdir.Write(filepath.Join(out, "sweep.png"), sf.WritePNG); err != nil {
+		var b bytes.Buffer
+		if err := sf.WritePNG(&b); err != nil {
+			return false, err
+		}
+		fig = b.Bytes()
+		if err := outdir.WriteFile(filepath.Join(out, "sweep.png"), fig); err != nil {
 			return false, err
 		}
 	}
-	return true, nil
+	html, err := sweepReport(out, sw, pts, sums, fig)
+	if err != nil {
+		return false, err
+	}
+	return true, outdir.WriteFile(filepath.Join(out, "report.html"), html)
+}
+
+// maxReportRows bounds the table of runs in a sweep's report.
+const maxReportRows = 2000
+
+// sweepReport is the HTML overview of a complete sweep.
+func sweepReport(out string, sw *config.Sweep, pts []config.Point, sums []*Summary, fig []byte) ([]byte, error) {
+	var axes []string
+	for _, a := range sw.Axes {
+		vals := make([]string, len(a.Values))
+		for i, v := range a.Values {
+			vals[i] = v.Raw
+		}
+		axes = append(axes, a.Key+" in ["+strings.Join(vals, ", ")+"]")
+	}
+	head := []string{"index", "run"}
+	for _, a := range sw.Axes {
+		head = append(head, a.Key)
+	}
+	head = append(head, "q*", "q_min (mW/m^2)", "q_max (mW/m^2)", "negative (%)", "sub-adiabatic (%)", "warnings")
+	var rows [][]string
+	warnRuns := map[string][]int{}
+	for i, p := range pts {
+		s := sums[i]
+		for _, w := range s.Warnings {
+			k, _, _ := strings.Cut(w, ":")
+			warnRuns[k] = append(warnRuns[k], i)
+		}
+		if i >= maxReportRows {
+			continue
+		}
+		row := []string{strconv.Itoa(p.Index), p.Name}
+		for _, kv := range p.Varied {
+			row = append(row, kv.Raw)
+		}
+		f := func(v *float64, scale float64) string {
+			if v == nil {
+				return ""
+			}
+			return strconv.FormatFloat(*v*scale, 'f', 2, 64)
+		}
+		row = append(row, strconv.FormatFloat(s.QStar, 'g', 4, 64), f(s.QMin, 1), f(s.QMax, 1),
+			f(&s.AreaNegative, 100), f(s.AreaSubadiabatic, 100), strconv.Itoa(len(s.Warnings)))
+		rows = append(rows, row)
+	}
+	var warns []string
+	for _, k := range sortedKeys(warnRuns) {
+		warns = append(warns, fmt.Sprintf("%s in %s (see each run's summary.json)", k, runList(warnRuns[k], len(pts))))
+	}
+	text := []string{fmt.Sprintf("%d runs: %s. Base: %s.", len(pts), strings.Join(axes, "; "), baseText(sw.Base)), conventionReminder}
+	if len(pts) > maxReportRows {
+		text = append(text, fmt.Sprintf("The table shows the first %d runs; summary.csv has all %d.", maxReportRows, len(pts)))
+	}
+	r := &htmlreport.Report{
+		Title:     "cmbflux sweep " + filepath.Base(sw.File),
+		Summary:   text,
+		Warnings:  warns,
+		Sections:  []htmlreport.Section{{Heading: "Runs", Tables: []htmlreport.Table{{Caption: "Diagnostics of every run (summary.csv)", Header: head, Rows: rows}}}},
+		Generator: version,
+	}
+	if fig != nil {
+		r.Figures = []htmlreport.Figure{{Caption: "q_min and the area fractions of negative and sub-adiabatic flux against q*.", MIME: "image/png", Data: fig}}
+	}
+	for _, n := range []string{"runs.tsv", "summary.csv", "sweep.png"} {
+		if n == "sweep.png" && fig == nil {
+			continue
+		}
+		f, err := htmlreport.HashFile(filepath.Join(out, n), n)
+		if err != nil {
+			return nil, err
+		}
+		r.Files = append(r.Files, f)
+	}
+	var b bytes.Buffer
+	if err := r.Write(&b); err != nil {
+		return nil, err
+	}
+	return b.Bytes(), nil
+}
+
+// baseText lists a sweep's base parameters as key = value.
+func baseText(s config.Set) string {
+	var parts []string
+	for _, k := range s.Keys() {
+		parts = append(parts, k+" = "+s[k].Raw)
+	}
+	if len(parts) == 0 {
+		return "defaults"
+	}
+	return strings.Join(parts, ", ")
 }

@@ -80,8 +80,8 @@ func TestSweepResumeAndOnly(t *testing.T) {
 		t.Fatalf("full sweep: %d %s", code, e)
 	}
 	want := tree(t, "full")
-	if len(want) != 12*3+4 { // coefficients.txt, summary.json, manifest.yaml per run; runs.tsv, sweep.yaml, summary.csv, sweep.png
-		t.Errorf("%d files in the sweep folder, want 40", len(want))
+	if len(want) != 12*3+5 { // coefficients.txt, summary.json, manifest.yaml per run; runs.tsv, sweep.yaml, summary.csv, sweep.png, report.html
+		t.Errorf("%d files in the sweep folder, want 41", len(want))
 	}
 	// The array-job way: every index on its own, in a scrambled order.
 	for _, i := range []int{5, 0, 11, 3, 7, 1, 9, 2, 10, 4, 8, 6} {

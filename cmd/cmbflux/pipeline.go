@@ -189,8 +189,8 @@ func parseGrid(s string) (*sh.Grid, error) {
 		return sh.NewDriscollHealy(n), nil
 	case "lonlat":
 		step, err := strconv.ParseFloat(arg, 64)
-		if err != nil || !(step > 0) || step > 90 {
-			return nil, bad("STEP must be a number of degrees from 0 to 90")
+		if err != nil || !(step >= 0.05) || step > 90 {
+			return nil, bad("STEP must be a number of degrees from 0.05 to 90")
 		}
 		nlat := 180/step + 1
 		if math.Abs(nlat-math.Round(nlat)) > 1e-9 {

@@ -103,6 +103,9 @@ func Normalize(g *Grid, opts UnitOptions) (*Grid, *UnitReport, error) {
 			return nil, nil, fail("%v", err)
 		}
 		rep.Guessed, rep.Reason = true, reason
+		if w := ambiguousGuess(g, from); w != "" {
+			rep.Warnings = append(rep.Warnings, w)
+		}
 	}
 	rep.From = from
 
@@ -274,4 +277,33 @@ func validSlice(valid []bool, off, n int) []bool {
 		return nil
 	}
 	return valid[off : off+n]
+}
+
+// ambiguousFraction is the largest magnitude above which values guessed to
+// be fractions are suspicious either way: above 5 % as fractions, below
+// 0.2 % as percent, while lowermost-mantle shear-velocity anomalies are
+// typically 1 to 3 % (common practice; references.md, Hernlund & Houser
+// 2008).
+const ambiguousFraction = 0.05
+
+// ambiguousGuess returns a warning when the units were guessed as a
+// fraction from values whose largest magnitude lies between
+// ambiguousFraction and the 0.2 limit of the guess: read as percent they
+// would be weak, read as fractions strong, and the two readings differ by
+// a factor 100 in every amplitude derived from them.
+func ambiguousGuess(g *Grid, from string) string {
+	if from != UnitFraction {
+		return ""
+	}
+	big := 0.0
+	for s, v := range g.Values {
+		if g.Valid == nil || g.Valid[s] {
+			big = math.Max(big, math.Abs(v))
+		}
+	}
+	if !(big > ambiguousFraction) {
+		return ""
+	}
+	return fmt.Sprintf("the units were guessed as a fraction, but the largest magnitude %g is unusual either way (%g %% as a fraction, %g %% as percent; lowermost-mantle anomalies are typically 1 to 3 %%): declare the units (a '# units:' line in a text or CSV file, the units attribute in netCDF) so that amplitudes are not off by a factor 100",
+		big, 100*big, big)
 }

@@ -158,3 +158,33 @@ func TestNormalizeUnusedReference(t *testing.T) {
 		t.Errorf("%v %q", err, rep.Warnings)
 	}
 }
+
+// TestAmbiguousGuess checks the warning for values guessed to be fractions
+// whose largest magnitude (above 0.05) is unusual read either way, given
+// lowermost-mantle anomalies of typically 1 to 3 % (common practice,
+// references.md); declared units or clearly small fractions give none.
+func TestAmbiguousGuess(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		units  string
+		values [4]float64
+		warn   bool
+	}{
+		{"fraction of a few percent", "", [4]float64{-0.03, 0.02, 0, 0.01}, false},
+		{"fraction at the 5 % edge", "", [4]float64{-0.05, 0.02, 0, 0.01}, false},
+		{"ambiguous 0.15", "", [4]float64{-0.15, 0.1, 0, 0.01}, true},
+		{"declared percent", "percent", [4]float64{-0.15, 0.1, 0, 0.01}, false},
+		{"guessed percent", "", [4]float64{-2.5, 1.5, 0, 0.3}, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, rep, err := Normalize(fourRowGrid(tc.values, tc.units), UnitOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := containsAny(rep.Warnings, "the units were guessed as a fraction, but the largest magnitude 0.15 is unusual either way (15 % as a fraction, 0.15 % as percent")
+			if got != tc.warn {
+				t.Errorf("warning %v, want %v: %q", got, tc.warn, rep.Warnings)
+			}
+		})
+	}
+}

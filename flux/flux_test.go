@@ -257,8 +257,6 @@ func TestSlowMantleLowFlux(t *testing.T) {
 	// Slow (hot) mantle above the CMB means low flux out of the core
 	// (common practice; Amit & Choblet 2012): a layer slowest at
 	// (lon 30, lat -20) must have its flux minimum there, in both modes.
-	rot := sh.AxisAngle(math.Pi/2, math.Pi/2, -(90+20)/rad2deg) // moves the north pole to lat -20 on lon 0
-	_ = rot
 	c := sh.NewCoeffs(1, sh.Canonical)
 	// dlnVs = -0.01 * (unit vector towards (30E, 20S)) . x, a degree-1 field.
 	lon, lat := 30/rad2deg, -20/rad2deg

@@ -126,9 +126,28 @@ func TestExtremaAgainstGonumOptimize(t *testing.T) {
 	// local maximum of an independent dense sampling (referenceExtremum).
 	// g is checked to 1e-9 of its range, and q_max, q_min at q* = 3 to
 	// 1e-8 of q_mean (the scale of the field; q_min may be near zero).
-	for _, lmax := range []int{4, 8, 16, 32} {
+	// Besides the tomography-like spectra, a white spectrum of degree 24
+	// (equal power per coefficient: many peaks of similar height, the
+	// hardest case for a search that refines a few grid candidates).
+	white := func(seed uint64, lmax int) *sh.Coeffs {
+		rng := rand.New(rand.NewPCG(seed, 9))
+		c := sh.NewCoeffs(lmax, sh.Canonical)
+		for l := 1; l <= lmax; l++ {
+			for m := 0; m <= l; m++ {
+				c.C[sh.Index(l, m)] = rng.NormFloat64()
+				if m > 0 {
+					c.S[sh.Index(l, m)] = rng.NormFloat64()
+				}
+			}
+		}
+		return c
+	}
+	for _, lmax := range []int{4, 8, 16, 24, 32} {
 		for seed := uint64(21); seed <= 23; seed++ {
 			in := randomDlnVs(seed, lmax)
+			if lmax == 24 {
+				in = white(seed, lmax)
+			}
 			p, err := NewPattern(in, nil)
 			if err != nil {
 				t.Fatal(err)
@@ -571,6 +590,47 @@ func TestAreaFractionsAgainstRingQuadrature(t *testing.T) {
 				t.Errorf("lmax %d q* %g: outline areas %.6f, %.6f; ring quadrature %.6f, %.6f", tc.lmax, qs, on, os, neg, sub)
 			}
 			t.Logf("lmax %d q* %g: outline differences %.2g, %.2g", tc.lmax, qs, on-neg, os-sub)
+		}
+	}
+}
+
+func TestRotateTwice(t *testing.T) {
+	// Two turns compose: R1 then R2 moves x to R2 R1 x (Rodrigues matrices
+	// above), so the field at x is the original's at R1^T R2^T x, and the
+	// minimum and the outline vertices move by R2 R1.
+	p, _ := NewPattern(randomDlnVs(33, 10), nil)
+	ref := Reference{QMean: 0.06}
+	r0, _ := p.WithQStar(3.2, ref)
+	c0, _ := r0.Coeffs(HeatFlux)
+	q1, _ := p.Rotate(37, 52, 73)
+	q2, err := q1.Rotate(-100, 10, 140)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, _ := q2.WithQStar(3.2, ref)
+	c, _ := r.Coeffs(HeatFlux)
+	R1, R2 := rodrigues(unitVec(37, 52), 73), rodrigues(unitVec(-100, 10), 140)
+	for _, x := range randomUnit(8, 100) {
+		if got, want := evalAt(c, x), evalAt(c0, mul(transpose(R1), mul(transpose(R2), x))); math.Abs(got-want) > 1e-11*ref.QMean {
+			t.Fatalf("q(x) = %.15g, original at R1^T R2^T x = %.15g", got, want)
+		}
+	}
+	move := func(v [2]float64) (float64, float64) { return vecLonLat(mul(R2, mul(R1, unitVec(v[0], v[1])))) }
+	sep := func(a [2]float64, lon, lat float64) float64 {
+		return angle(point{(90 - a[1]) / rad2deg, a[0] / rad2deg}, point{(90 - lat) / rad2deg, lon / rad2deg}) * rad2deg
+	}
+	if lon, lat := move(r0.Diagnostics.QMinLonLat); sep(r.Diagnostics.QMinLonLat, lon, lat) > 1e-9 {
+		t.Errorf("minimum at %v, want (%g, %g)", r.Diagnostics.QMinLonLat, lon, lat)
+	}
+	o0, o := r0.Outlines(), r.Outlines()
+	if len(o0.Negative) == 0 || len(o.Negative) != len(o0.Negative) {
+		t.Fatalf("%d and %d negative rings", len(o0.Negative), len(o.Negative))
+	}
+	for k := range o.Negative {
+		for m, v := range o.Negative[k] {
+			if lon, lat := move(o0.Negative[k][m]); sep(v, lon, lat) > 1e-9 {
+				t.Fatalf("outline vertex %v, want (%g, %g)", v, lon, lat)
+			}
 		}
 	}
 }

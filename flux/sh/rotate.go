@@ -174,43 +174,20 @@ func (r Rotation) EulerZYZ() (alpha, beta, gamma float64) {
 // (about 1e-8 at degree 100 in this package's tests; Gumerov & Duraiswami
 // 2014, arXiv 1403.7698, discuss this loss). Cost O(LMax^3), memory O(LMax^2).
 //
-// Conventions other than the canonical one are rescaled per degree and
-// order, rotated and rescaled back. Rotate returns an error for the
-// unnormalized convention above degree 150, where the per-order factors
-// (l+m)!/(l-m)! leave the range of float64.
+// Coefficients in another convention are converted to the canonical one
+// (Convert), rotated and converted back; the error is Convert's for a
+// convention that cannot represent the degree (unnormalized above degree
+// 150).
 func (c *Coeffs) Rotate(r Rotation) (*Coeffs, error) {
-	if c.Conv.Norm == Unnormalized && c.LMax > 150 {
-		return nil, fmt.Errorf("sh: cannot rotate unnormalized coefficients above degree 150 (got lmax %d): convert to an orthonormal or 4-pi convention first", c.LMax)
-	}
-	// factor f with Y_conv = f * Y_canonical, so c_canonical = f * c_conv.
-	factor := func(l, m int) float64 {
-		f := normFactor(c.Conv.Norm, l, m)
-		if c.Conv.CondonShortley && m%2 == 1 {
-			f = -f
-		}
-		return f
-	}
-	w := NewCoeffs(c.LMax, Canonical)
-	for l := 0; l <= c.LMax; l++ {
-		for m := 0; m <= l; m++ {
-			i := Index(l, m)
-			f := factor(l, m)
-			w.C[i], w.S[i] = c.C[i]*f, c.S[i]*f
-		}
+	w, err := c.Convert(Canonical)
+	if err != nil {
+		return nil, fmt.Errorf("sh: rotate: %w", err)
 	}
 	alpha, beta, gamma := r.EulerZYZ()
 	w = w.ShiftLongitude(gamma)
 	w = rotateY(w, beta)
 	w = w.ShiftLongitude(alpha)
-	out := NewCoeffs(c.LMax, c.Conv)
-	for l := 0; l <= c.LMax; l++ {
-		for m := 0; m <= l; m++ {
-			i := Index(l, m)
-			f := factor(l, m)
-			out.C[i], out.S[i] = w.C[i]/f, w.S[i]/f
-		}
-	}
-	return out, nil
+	return w.Convert(c.Conv)
 }
 
 // rotateY returns canonical coefficients of f(Ry(beta)^-1 x).
@@ -351,28 +328,4 @@ func wignerStart(J, mp, m int, ch, sh float64) float64 {
 		sign = -sign
 	}
 	return sign * math.Exp(logv)
-}
-
-// normFactor returns f_lm with Y_lm(norm) = f_lm * Y_lm(orthonormal), both
-// without the Condon-Shortley phase (normalizations as defined on the
-// Normalization constants).
-func normFactor(norm Normalization, l, m int) float64 {
-	switch norm {
-	case Orthonormal:
-		return 1
-	case FourPi:
-		return math.Sqrt(4 * math.Pi)
-	case Schmidt:
-		return math.Sqrt(4 * math.Pi / float64(2*l+1))
-	case Unnormalized:
-		// 1 / N_lm(orthonormal), N_lm = sqrt((2 - delta_m0)(2l+1)/(4 pi) (l-m)!/(l+m)!).
-		lg1, _ := math.Lgamma(float64(l - m + 1))
-		lg2, _ := math.Lgamma(float64(l + m + 1))
-		d := 2.0
-		if m == 0 {
-			d = 1
-		}
-		return 1 / math.Sqrt(d*float64(2*l+1)/(4*math.Pi)*math.Exp(lg1-lg2))
-	}
-	panic(fmt.Sprintf("sh: unknown normalization %d", int(norm)))
 }

@@ -39,7 +39,7 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 	for k, v := range specParams(sp) {
 		m.Params[k] = v
 	}
-	opt := &export.CoeffOptions{Conv: conv, Complex: sp.Form == "complex"}
+	opt := &export.CoeffOptions{Conv: conv, Complex: sp.Form == "complex", OmitDegree0: sp.NoDegree0}
 	var names []string
 	coeffFile := func(name string, format export.Format) error {
 		var b bytes.Buffer

@@ -330,6 +330,9 @@ func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) [
 	} else {
 		w = append(w, pt.flux.Warnings()...)
 	}
+	if sp.NoDegree0 && sp.Quantity != "anomaly" {
+		w = append(w, fmt.Sprintf("degree 0 left out: the coefficient tables lack the mean (%s); the simulation must add it itself", meanText(s)))
+	}
 	if sp.Norm != "orthonormal" || sp.CondonShortley || sp.Form != "real" {
 		w = append(w, fmt.Sprintf("non-default convention: coefficients are written %s, %s form; check that this is exactly the convention your simulation code's documentation states", s.Convention, sp.Form))
 	}
@@ -348,6 +351,13 @@ func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) [
 	}
 	sort.Strings(w)
 	return w
+}
+
+func meanText(s *Summary) string {
+	if s.QMean != nil && s.Quantity == "flux" {
+		return fmt.Sprintf("%.4g mW/m^2", *s.QMean)
+	}
+	return "degree 0 of the " + s.Quantity
 }
 
 func fmtMW(v *float64) string {

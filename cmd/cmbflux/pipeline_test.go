@@ -395,3 +395,17 @@ func TestConvertPlainTableNormalizations(t *testing.T) {
 		t.Errorf("found %d of the 2 rows in\n%s", got, out)
 	}
 }
+
+func TestNoDegree0(t *testing.T) {
+	t.Chdir(t.TempDir())
+	_, errs := mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--lmax", "4", "--no-degree0", "--out", "bc")
+	data, _ := os.ReadFile("bc/coefficients.txt")
+	for _, line := range strings.Split(string(data), "\n") {
+		if strings.HasPrefix(line, "0 0 ") {
+			t.Fatalf("degree 0 written: %q", line)
+		}
+	}
+	if !strings.Contains(errs, "degree 0 left out") || !strings.Contains(string(data), "degree_0 = omitted") {
+		t.Errorf("no warning or header line for the missing degree 0:\n%s", errs)
+	}
+}

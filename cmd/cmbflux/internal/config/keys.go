@@ -64,6 +64,7 @@ var BuildKeys = []Key{
 	{Name: "quantity", Kind: String, Arg: "Q", Group: "Output", Usage: "flux (q, mW/m^2), anomaly (q - q_mean), relative (q/q_mean), superadiabatic ((q - q_ad)/(q_mean - q_ad)), dtdr (-q/k_core, K/km) or dvs (percent) (default flux)"},
 	{Name: "norm", Kind: String, Arg: "N", Group: "Output", Usage: "orthonormal, fully-normalized, schmidt or unnormalized (default orthonormal)"},
 	{Name: "condon-shortley", Kind: Bool, Group: "Output", Usage: "include the Condon-Shortley phase (-1)^m (default off)"},
+	{Name: "no-degree0", Kind: Bool, Group: "Output", Usage: "leave degree 0 (the mean) out of the coefficient tables"},
 	{Name: "form", Kind: String, Arg: "F", Group: "Output", Usage: "real (cos/sin) or complex (default real)"},
 	{Name: "grid", Kind: String, Arg: "G", Group: "Output", Usage: "grid for grid outputs and diagnostics: gauss:NLAT, equiangular:N or lonlat:STEP (default lonlat:1)"},
 	{Name: "formats", Kind: List, Arg: "LIST", Group: "Output", Usage: "extra outputs, comma-separated: txt, json, csv, nc, geojson, png, svg, html (txt is always written)"},

@@ -59,6 +59,7 @@ type Spec struct {
 	Quantity       string
 	Norm           string
 	CondonShortley bool
+	NoDegree0      bool
 	Form           string
 	Grid           string
 	Formats        []string // always contains "txt"
@@ -255,6 +256,7 @@ func Resolve(s Set) (*Spec, error) {
 		sp.Norm = v.Raw
 	}
 	sp.CondonShortley = b("condon-shortley")
+	sp.NoDegree0 = b("no-degree0")
 	if v, ok := s["form"]; ok {
 		if v.Raw != "real" && v.Raw != "complex" {
 			return nil, bad("form", "%q is not real or complex", v.Raw)

@@ -189,7 +189,10 @@ func Normalize(g *Grid, opts UnitOptions) (*Grid, *UnitReport, error) {
 		}
 		if !opts.Force {
 			hint := ""
-			if rep.Guessed {
+			switch {
+			case rep.Guessed && strings.HasPrefix(rep.Reason, "from the file's units"):
+				hint = "; the units were taken " + rep.Reason + ", so give them explicitly if the file's are wrong"
+			case rep.Guessed:
 				hint = "; the units were guessed (" + rep.Reason + "), so give them explicitly if the guess is wrong"
 			}
 			return nil, nil, fail("%s%s; force the values if they are real", msg, hint)

@@ -134,6 +134,15 @@ func TestNormalizePlausibility(t *testing.T) {
 	if !errors.As(err, &ie) || !errors.Is(err, ErrBadInput) || !strings.Contains(err.Error(), "4 values exceed the plausible 20 %") {
 		t.Fatalf("err = %v", err)
 	}
+	// Units from the file are not called a guess.
+	if !strings.Contains(err.Error(), `the units were taken from the file's units "percent", so give them explicitly if the file's are wrong`) {
+		t.Errorf("err = %v", err)
+	}
+	// Units guessed from the values are.
+	u := fourRowGrid([4]float64{1, 25, -3, 0}, "")
+	if _, _, err := Normalize(u, UnitOptions{}); err == nil || !strings.Contains(err.Error(), "the units were guessed (from the value range") {
+		t.Errorf("guessed: %v", err)
+	}
 	_, rep, err := Normalize(g, UnitOptions{Force: true})
 	if err != nil || len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "forced") {
 		t.Fatalf("forced: %v, %v", err, rep)

@@ -264,7 +264,7 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 		return err
 	}
 	if !o.quiet {
-		fmt.Fprintf(stdout, "sweep: %d runs in %s/ (%d built, %d already complete)\n", len(sel), filepath.ToSlash(out), built, skipped)
+		fmt.Fprintf(stdout, "sweep: %s in %s/ (%d built, %d already complete)\n", plural(len(sel), "run"), filepath.ToSlash(out), built, skipped)
 		if all {
 			fmt.Fprintf(stdout, "sweep: all %d runs complete; diagnostics in %s\n", len(pts), filepath.ToSlash(filepath.Join(out, "summary.csv")))
 		} else {
@@ -572,4 +572,12 @@ func baseText(s config.Set) string {
 		return "defaults"
 	}
 	return strings.Join(parts, ", ")
+}
+
+// plural returns "1 run" or "n runs".
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
 }

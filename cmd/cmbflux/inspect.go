@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 
 	"cmbflux/export"
@@ -14,6 +16,11 @@ import (
 
 const inspectHelp = `Usage: cmbflux inspect FILE [--var NAME] [--json]
        cmbflux inspect --demo [--json]
+       cmbflux inspect DIR
+
+For an output folder of cmbflux (one with manifest.yaml), checks every file
+against the manifest's sizes and sha256 sums and exits with status 1 if one
+differs.
 
 Says what a file is. For a tomography grid (text, CSV, netCDF): the grid's
 geometry and registration, longitude and latitude ranges and steps, depth
@@ -93,6 +100,11 @@ func runInspect(stdout, stderr io.Writer, args []string) error {
 	}
 	if demo == (len(pos) == 1) || len(pos) > 1 {
 		return usagef("inspect", "give one FILE or --demo")
+	}
+	if !demo && pos[0] != "-" {
+		if fi, err := os.Stat(pos[0]); err == nil && fi.IsDir() {
+			return inspectFolder(stdout, pos[0], asJSON)
+		}
 	}
 	var info any
 	if demo {
@@ -270,4 +282,58 @@ func printCoeffInfo(w io.Writer, in *coeffInfo) {
 	for _, n := range in.Warnings {
 		fmt.Fprintf(w, "  warning       %s\n", n)
 	}
+}
+
+// folderInfo is what inspect reports about an output folder.
+type folderInfo struct {
+	Folder   string   `json:"folder"`
+	Kind     string   `json:"kind"`
+	Command  string   `json:"command,omitempty"`
+	Version  string   `json:"cmbflux_version"`
+	Files    int      `json:"files"`
+	Verified bool     `json:"verified"`
+	Problem  string   `json:"problem,omitempty"`
+	Inputs   []string `json:"inputs"`
+}
+
+// inspectFolder verifies a cmbflux output folder against its manifest.
+func inspectFolder(w io.Writer, dir string, asJSON bool) error {
+	if _, err := os.Stat(filepath.Join(dir, "manifest.yaml")); err != nil {
+		return inputErrorf("%s: a folder without manifest.yaml; inspect takes a file, or a folder written by cmbflux build", dir)
+	}
+	m, verr := export.Verify(dir)
+	in := &folderInfo{Folder: dir, Kind: "cmbflux output folder", Verified: verr == nil, Inputs: []string{}}
+	if m != nil {
+		in.Command, in.Version, in.Files = m.Command, m.Version, len(m.Files)
+		for _, i := range m.Inputs {
+			in.Inputs = append(in.Inputs, i.Name+" (sha256 "+i.SHA256+")")
+		}
+	}
+	if verr != nil {
+		in.Problem = verr.Error()
+	}
+	if asJSON {
+		b, err := marshalJSON(in)
+		if err != nil {
+			return err
+		}
+		if _, err := w.Write(b); err != nil {
+			return err
+		}
+	} else {
+		fmt.Fprintf(w, "%s: %s written by %s\n", dir, in.Kind, in.Version)
+		if in.Command != "" {
+			fmt.Fprintf(w, "  made by       %s\n", in.Command)
+		}
+		for _, i := range in.Inputs {
+			fmt.Fprintf(w, "  input         %s\n", i)
+		}
+		if verr == nil {
+			fmt.Fprintf(w, "  verified      all %d files match the manifest\n", in.Files)
+		}
+	}
+	if verr != nil {
+		return fmt.Errorf("%s: %v", dir, verr)
+	}
+	return nil
 }

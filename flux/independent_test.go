@@ -634,3 +634,57 @@ func TestRotateTwice(t *testing.T) {
 		}
 	}
 }
+
+func TestHiddenRegionAwayFromGlobalMinimum(t *testing.T) {
+	// g = -Y_2^0 - eps K, K a smooth zonal kernel centred on a search-grid
+	// cell centre on the equator (the addition theorem, sum_m Y_lm(x)
+	// Y_lm(x0) = (2l+1)/(4 pi) P_l(x . x0), gives its coefficients
+	// w_l Y_lm(x0); closed form): a local minimum well above the global
+	// minima at the poles, so far above them that a search for the global
+	// extrema alone does not refine it. Just above its value the region
+	// below the level lies inside one cell, cutting no grid edge; it must
+	// still be counted (ring quadrature reference, see ringFractions).
+	const L = 12 // 48 search rings, 96 longitudes: cells 3.75 deg wide
+	lon0 := (1.875 + 3.75*10) / rad2deg
+	pl := sh.Legendre(nil, L, math.Pi/2, sh.Canonical)
+	for _, tc := range []struct {
+		eps float64
+		d   []float64 // levels above the local minimum
+	}{{0.05, []float64{3e-4, 1e-3}}, {0.1, []float64{1e-3, 3e-3}}} {
+		eps := tc.eps
+		c := sh.NewCoeffs(L, sh.Canonical)
+		for l := 1; l <= L; l++ {
+			w := math.Exp(-float64(l*(l+1)) / 60)
+			for m := 0; m <= l; m++ {
+				k := sh.Index(l, m)
+				s, co := math.Sincos(float64(m) * lon0)
+				c.C[k] -= eps * w * pl[k] * co
+				c.S[k] -= eps * w * pl[k] * s
+			}
+		}
+		c.C[sh.Index(2, 0)] -= 1
+		p, err := NewPattern(c, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := c.Evaluate(math.Pi/2, lon0)
+		_, _, gmin, _ := p.Extrema()
+		rf := newRingFractions(p.Coeffs(), 8000)
+		for _, d := range tc.d {
+			lev := m + d
+			if n, cut := p.surf.CellBelow(lon0*rad2deg, 0, lev); n != 0 || cut {
+				t.Fatalf("eps %g, level m + %g: the test needs a region inside the cell (corners %d, cut %v)", eps, d, n, cut)
+			}
+			if !(m-gmin > 0.4) {
+				t.Fatalf("eps %g: local minimum %g too close to the global %g", eps, m, gmin)
+			}
+			// Through the public route: q_ad such that q < q_ad is g < lev.
+			const qm, qs = 0.05, 2.0
+			a := qs / func() float64 { x, _, n, _ := p.Extrema(); return x - n }()
+			r, _ := p.WithQStar(qs, Reference{QMean: qm, QAd: qm * (1 + a*lev)})
+			if got, want := *r.Diagnostics.AreaFractionSubadiabatic, rf.below(lev); math.Abs(got-want) > 3e-5 {
+				t.Errorf("eps %g, level m + %g: fraction %.7f, ring quadrature %.7f (difference %.2g)", eps, d, got, want, got-want)
+			}
+		}
+	}
+}

@@ -165,7 +165,7 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 	}
 	p.nr = max(os*(g.LMax+1), 48)
 	grid := newDenseGrid(g, p.nr, true)
-	p.max, p.min, p.maxs, p.mins = extrema(g, grid)
+	p.max, p.min, p.maxs, p.mins = extrema(g, grid, true)
 	surf, err := grid.surface(g)
 	if err != nil {
 		return nil, fmt.Errorf("flux: internal error contouring the pattern: %v", err)
@@ -178,7 +178,7 @@ func newPattern(g, in *sh.Coeffs, o PatternOptions, warn []string) (*Pattern, er
 		inp := in.Truncate(min(in.LMax, 128))
 		inp.C[0] = 0
 		ig := newDenseGrid(inp, max(os*(inp.LMax+1), 48), false)
-		_, mn, _, _ := extrema(inp, ig)
+		_, mn, _, _ := extrema(inp, ig, false)
 		p.slow = mn.at
 	}
 	return p, nil

@@ -10,6 +10,13 @@ import (
 
 const rad2deg = 180 / math.Pi
 
+// maxLocal caps the local extrema of each kind refined for the area
+// fractions (extrema with every). A region hidden inside one cell has at
+// most the cell's area, about pi / (4 nr^2) of the sphere for nr rings;
+// patterns with more local extrema than this have so many rings (degree
+// above about 60) that the cells are below 2e-5 of the sphere.
+const maxLocal = 400
+
 // point is a position on the sphere: colatitude and east longitude, radians.
 type point struct{ colat, lon float64 }
 
@@ -161,9 +168,9 @@ func (g *denseGrid) surface(c *sh.Coeffs) (*contour.Surface, error) {
 
 // candidates returns up to k grid points that are local maxima of s*f
 // (s = +1 for maxima, -1 for minima) over their eight neighbours, best
-// first, and within a third of the grid range of the best. The poles are
-// candidates against the nearest ring.
-func (g *denseGrid) candidates(s float64, k int) []point {
+// first, and (when near) within a third of the grid range of the best. The
+// poles are candidates against the nearest ring.
+func (g *denseGrid) candidates(s float64, k int, near bool) []point {
 	n := g.nlon
 	nr := len(g.colat)
 	type cand struct {
@@ -231,7 +238,7 @@ func (g *denseGrid) candidates(s float64, k int) []point {
 	}
 	var out []point
 	for q := 0; q < len(cs) && q < k; q++ {
-		if q >= 2 && cs[q].v < cs[0].v-(hi-lo)/3 {
+		if near && q >= 2 && cs[q].v < cs[0].v-(hi-lo)/3 {
 			break
 		}
 		out = append(out, cs[q].p)
@@ -328,26 +335,40 @@ type extremum struct {
 }
 
 // extrema returns the global maximum and minimum of the canonical expansion
-// c and all refined local extrema of each kind (distinct, most extreme
-// first): a dense grid search (the rings of g) and Newton refinement from
-// the best grid candidates of each kind.
-func extrema(c *sh.Coeffs, g *denseGrid) (max, min extremum, maxs, mins []extremum) {
+// c and refined local extrema of each kind (distinct, most extreme first): a
+// dense grid search (the rings of g) and Newton refinement from the best
+// grid candidates of each kind. With every, all local extrema of the grid
+// (up to maxLocal of each kind) are refined too, not only those near the
+// global ones, so that fractionBelow can add the small regions around any
+// of them that hide inside one grid cell; without it (a position search
+// only) the few best suffice.
+func extrema(c *sh.Coeffs, g *denseGrid, every bool) (max, min extremum, maxs, mins []extremum) {
 	ev := sh.NewEvaluator(c)
 	maxStep := math.Pi / float64(len(g.colat)-1)
 	const starts = 12
 	all := func(s float64) []extremum {
 		var es []extremum
-		for _, p := range g.candidates(s, starts) {
-			q, v, det := refine(ev, p, s, maxStep)
-			dup := false
-			for k := range es {
-				if angle(es[k].at, q) < 1e-6 {
-					dup = true
-					break
+		add := func(ps []point) {
+			for _, p := range ps {
+				q, v, det := refine(ev, p, s, maxStep)
+				dup := false
+				for k := range es {
+					if angle(es[k].at, q) < 1e-6 {
+						dup = true
+						break
+					}
+				}
+				if !dup {
+					es = append(es, extremum{q, v, det})
 				}
 			}
-			if !dup {
-				es = append(es, extremum{q, v, det})
+		}
+		best := g.candidates(s, starts, true)
+		add(best)
+		if every {
+			if rest := g.candidates(s, maxLocal, false); len(rest) > len(best) {
+				// The first len(best) are the same points, best first.
+				add(rest[len(best):])
 			}
 		}
 		sort.Slice(es, func(a, b int) bool { return s*es[a].value > s*es[b].value })

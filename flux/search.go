@@ -12,10 +12,18 @@ const rad2deg = 180 / math.Pi
 
 // maxLocal caps the local extrema of each kind refined for the area
 // fractions (extrema with every). A region hidden inside one cell has at
-// most the cell's area, about pi / (4 nr^2) of the sphere for nr rings;
-// patterns with more local extrema than this have so many rings (degree
-// above about 60) that the cells are below 2e-5 of the sphere.
+// most the cell's area, about pi / (4 nr^2) of the sphere for nr rings. A
+// white spectrum of degree L has about L^2/5 local minima on the search
+// grid, tomography-like red spectra far fewer (measured), so the cap binds
+// only above degree about 45, where a cell is below 4e-5 of the sphere.
+// Above minCellFraction's degree (about 90) no extra extremum is refined.
 const maxLocal = 400
+
+// minCellFraction is the largest cell, as a fraction of the sphere, below
+// which hidden regions are too small to matter (well under the 1e-4 promised
+// for the area fractions) and only the extrema near the global ones are
+// refined.
+const minCellFraction = 1e-5
 
 // point is a position on the sphere: colatitude and east longitude, radians.
 type point struct{ colat, lon float64 }
@@ -365,7 +373,7 @@ func extrema(c *sh.Coeffs, g *denseGrid, every bool) (max, min extremum, maxs, m
 		}
 		best := g.candidates(s, starts, true)
 		add(best)
-		if every {
+		if nr := len(g.colat) - 2; every && math.Pi/(4*float64(nr*nr)) > minCellFraction {
 			if rest := g.candidates(s, maxLocal, false); len(rest) > len(best) {
 				// The first len(best) are the same points, best first.
 				add(rest[len(best):])

@@ -39,6 +39,18 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 	for k, v := range specParams(sp) {
 		m.Params[k] = v
 	}
+	// The warnings travel with every data file, by class, so that a table
+	// copied on its own still says what is wrong with it.
+	if len(s.Warnings) > 0 {
+		var classes []string
+		for _, w := range s.Warnings {
+			c, _, _ := strings.Cut(w, ":")
+			if len(classes) == 0 || classes[len(classes)-1] != c {
+				classes = append(classes, c)
+			}
+		}
+		m.Params["warnings"] = strings.Join(classes, "; ") + " (details in summary.json)"
+	}
 	opt := &export.CoeffOptions{Conv: conv, Complex: sp.Form == "complex", OmitDegree0: sp.NoDegree0}
 	var names []string
 	coeffFile := func(name string, format export.Format) error {

@@ -150,6 +150,9 @@ func TestNegativeAndSubadiabaticAreas(t *testing.T) {
 	if !strings.Contains(errs, "negative heat flux") || !strings.Contains(strings.Join(s.Warnings, "\n"), "negative heat flux") {
 		t.Errorf("no negative-flux warning on stderr and in summary.json:\n%s", errs)
 	}
+	if table, _ := os.ReadFile("bc/coefficients.txt"); !strings.Contains(string(table), "param.warnings = negative heat flux") {
+		t.Errorf("the coefficient table does not carry the warnings:\n%s", table)
+	}
 }
 
 func TestConventionsRoundTrip(t *testing.T) {

@@ -36,6 +36,9 @@ type Diagnostics struct {
 	MaxDeviationOverMean float64 `json:"max_deviation_over_mean"`
 	// FluxUnits names the unit of the flux entries, "mW/m^2".
 	FluxUnits string `json:"flux_units"`
+	// FluxSign states the sign convention of the flux entries: positive
+	// where heat leaves the core (HeatFlux.Info().Sign).
+	FluxSign string `json:"flux_sign"`
 	// QMean is the mean heat flux, mW/m^2.
 	QMean float64 `json:"q_mean"`
 	// QMax is the maximum of the continuous field, mW/m^2.
@@ -164,6 +167,7 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 	d.RMSOverMean = a * p.rms
 	d.MaxDeviationOverMean = a * math.Max(p.max.value, -p.min.value)
 	d.FluxUnits = "mW/m^2"
+	d.FluxSign = HeatFlux.Info().Sign
 	d.QMean, d.QMax, d.QMin = qm*mw, qmax*mw, qmin*mw
 	d.QMaxLonLat, d.QMinLonLat = p.max.at.lonLat(), p.min.at.lonLat()
 	d.HeatFlowTW = HeatFlowFromFlux(qm) / TW

@@ -482,6 +482,11 @@ func TestDiagnosticsJSON(t *testing.T) {
 			t.Errorf("diagnostics JSON lacks %q: %s", k, b)
 		}
 	}
+	// Positive flux means heat leaving the core, and the summary says so
+	// (the requirement; the sign convention of DEVELOPERS.md).
+	if sign, _ := m["flux_sign"].(string); !contains(sign, "positive: heat leaves the core") {
+		t.Errorf("diagnostics JSON must state the sign of the flux: %q", sign)
+	}
 	if _, ok := m["k_mantle"]; ok {
 		t.Errorf("ratio mode must not write physical constants: %s", b)
 	}

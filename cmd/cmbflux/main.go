@@ -127,7 +127,7 @@ func init() {
 	commands = []command{
 		{"build", "write one heat-flux boundary condition", runBuild},
 		{"sweep", "write a boundary condition for every point of a parameter sweep", runSweep},
-		{"inspect", "describe a tomography grid or a coefficient file", runInspect},
+		{"inspect", "describe a tomography grid or a coefficient file; verify an output folder", runInspect},
 		{"convert", "change the convention of a coefficient file, or go between grid and coefficients", runConvert},
 		{"plot", "draw a map and a spectrum of a grid or coefficient file", runPlot},
 		{"compare", "compare tomography models at the base of the mantle", runCompare},

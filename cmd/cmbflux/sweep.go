@@ -266,7 +266,7 @@ func runSweep(stdout, stderr io.Writer, args []string) error {
 	if !o.quiet {
 		fmt.Fprintf(stdout, "sweep: %s in %s/ (%d built, %d already complete)\n", plural(len(sel), "run"), filepath.ToSlash(out), built, skipped)
 		if all {
-			fmt.Fprintf(stdout, "sweep: all %d runs complete; diagnostics in %s\n", len(pts), filepath.ToSlash(filepath.Join(out, "summary.csv")))
+			fmt.Fprintf(stdout, "sweep: all %d runs complete; diagnostics in %s and %s\n", len(pts), filepath.ToSlash(filepath.Join(out, "summary.csv")), filepath.ToSlash(filepath.Join(out, "report.html")))
 		} else {
 			fmt.Fprintf(stdout, "sweep: other runs are still missing; summary.csv is written when all %d are complete\n", len(pts))
 		}

@@ -245,6 +245,9 @@ func (p *Pattern) WithPhysical(ph Physical, ref Reference) (*Result, error) {
 	if ph.Thickness < 1e3 || ph.Thickness > 1e6 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("units: boundary-layer thickness %.4g km is outside 1-1000 km (about 200 km is usual): check that it was given in metres", ph.Thickness/1e3))
 	}
+	if ph.Conductivity < 1 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("units: mantle conductivity %.4g W/m/K is far below lowermost-mantle values (5-12 W/m/K): check that it is in W/m/K", ph.Conductivity))
+	}
 	if ph.Conductivity > 50 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("units: mantle conductivity %.4g W/m/K is far above lowermost-mantle values (5-12 W/m/K): is it the core's?", ph.Conductivity))
 	}

@@ -184,6 +184,9 @@ func (p *Pattern) result(a, qm, qad float64, hasAd bool, kcore float64) *Result 
 	if qm < 1e-3 || qm > 1 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("units: mean flux %.4g mW/m^2 (%.4g TW) is far outside the usual 10-300 mW/m^2 (3-45 TW): check the units (flux in W/m^2 inside the library, mW/m^2 at the edge; heat flow in W, TW at the edge)", qm*mw, HeatFlowFromFlux(qm)/TW))
 	}
+	if kcore > 0 && (kcore < 5 || kcore > 500) {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("units: core conductivity %.4g W/m/K is outside 5-500 W/m/K (published values for the outermost core are about 20-150 W/m/K: Konopkova et al. 2016, Pozzo et al. 2012): check the units of k_core, which sets dT/dr = -q / k_core", kcore))
+	}
 	if hasAd {
 		v, tw := qad*mw, HeatFlowFromFlux(qad)/TW
 		d.QAd, d.AdiabaticHeatFlowTW = &v, &tw

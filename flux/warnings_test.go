@@ -104,3 +104,49 @@ func TestMeasuresOnGrid(t *testing.T) {
 		}
 	}
 }
+
+func TestConductivityUnitWarnings(t *testing.T) {
+	// Lowermost-mantle conductivity 5-12 W/m/K (Manga & Jeanloz 1997;
+	// Manthilake et al. 2011), outermost core about 20-150 W/m/K
+	// (Konopkova et al. 2016; Pozzo et al. 2012; references.md): values far
+	// outside, e.g. given in mW/m/K or in kW/m/K, draw a unit warning, the
+	// published ones do not.
+	p, _ := Ideal(nil, Term{L: 2, M: 0, Weight: 1})
+	for _, tc := range []struct {
+		kMantle, kCore float64
+		warn           bool
+	}{
+		{8.4, 40, false}, {8.4, 150, false}, {0.0084, 40, true}, {8.4, 0.04, true}, {8.4, 40000, true},
+	} {
+		r, err := p.WithPhysical(Physical{Conductivity: tc.kMantle, Thickness: 2e5, DlnVsDT: -2e-5}, Reference{QMean: 0.08, KCore: tc.kCore})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := hasWarning(r, "units:"); got != tc.warn {
+			t.Errorf("k_mantle %g, k_core %g: unit warning %v, want %v: %q", tc.kMantle, tc.kCore, got, tc.warn, r.Warnings)
+		}
+	}
+}
+
+func TestAdiabaticFromHeatFlow(t *testing.T) {
+	// q_ad from an adiabatic heat flow: Q_ad / (4 pi rc^2), rc = 3480 km
+	// (PREM). With 10 TW and 7 TW, r = q_ad / q_mean = 0.7, and for Y_1^0
+	// at q* = 3 the sub-adiabatic fraction is (1 - 2 (1 - r)/q*)/2 = 0.4
+	// (Archimedes, see TestZonalY10ClosedForms).
+	p, _ := Ideal(nil, Term{L: 1, M: 0, Weight: 1})
+	r, err := p.WithQStar(3, Reference{HeatFlow: 10 * TW, AdiabaticHeatFlow: 7 * TW})
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := r.Diagnostics
+	area := 4 * math.Pi * 3480e3 * 3480e3
+	if !near(*d.QAd, 7e12/area*1e3, 1e-12) || !near(*d.AdiabaticHeatFlowTW, 7, 1e-12) || !near(d.QMean, 10e12/area*1e3, 1e-12) {
+		t.Errorf("q_ad %g mW/m^2 (%g TW), q_mean %g; want %g (7 TW), %g", *d.QAd, *d.AdiabaticHeatFlowTW, d.QMean, 7e12/area*1e3, 10e12/area*1e3)
+	}
+	if math.Abs(*d.AreaFractionSubadiabatic-0.4) > 1e-5 {
+		t.Errorf("sub-adiabatic fraction %g, want 0.4", *d.AreaFractionSubadiabatic)
+	}
+	if _, err := p.WithQStar(3, Reference{HeatFlow: 10 * TW, QAd: 0.04, AdiabaticHeatFlow: 7 * TW}); err == nil {
+		t.Error("both an adiabatic flux and an adiabatic heat flow must be refused")
+	}
+}

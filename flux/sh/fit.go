@@ -43,7 +43,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/lapack/gonum"
 	"gonum.org/v1/gonum/mat"
 )
@@ -345,11 +344,12 @@ func fitRings(lmax int, g *Grid, field, ringW []float64, opt *FitOptions, rep *F
 	}
 	// Fourier coefficients a_im, b_im of each used ring:
 	// f(phi) = sum_m a_m cos(m phi) + b_m sin(m phi).
-	fft := fourier.NewFFT(nlon)
+	// The package's real FFT (fft.go), accurate at any length.
+	fft := newRealFFT(nlon)
 	nk := nlon/2 + 1
 	spec := make([]complex128, len(rings)*nk)
 	for r, i := range rings {
-		fft.Coefficients(spec[r*nk:(r+1)*nk], field[i*nlon:(i+1)*nlon])
+		fft.forward(spec[r*nk:(r+1)*nk], field[i*nlon:(i+1)*nlon])
 	}
 	rc := newRecursion(lmax)
 	lambda := opt.damping()

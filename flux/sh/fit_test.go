@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // sampleGrid evaluates c on g with the pointwise evaluator (Evaluator,
@@ -244,4 +246,172 @@ func TestFitRefusesSparseCap(t *testing.T) {
 	if d := trMaxRel(got, c20); d > 1e-9 || rep.Iter > 100 {
 		t.Errorf("lmax 20: error %.3g after %d iterations", d, rep.Iter)
 	}
+}
+
+// denseDampedFit solves the damped weighted least-squares problem of fit.go,
+// minimise sum_p w_p (f_p - (Y c)_p)^2 + lambda sum_lm l(l+1) (C_lm^2 + S_lm^2),
+// by a dense QR factorization (gonum/mat) of the stacked matrix
+// [W^(1/2) Y; (lambda D)^(1/2)] (Tikhonov regularization written as an
+// ordinary least-squares problem; Golub & Van Loan, Matrix Computations,
+// 4th ed., sec. 6.1, from memory), with Y built column by column from the
+// pointwise Legendre functions (Legendre, checked against mpmath in
+// legendre_ref_test.go). It shares nothing with the fast operators or the
+// per-order solver of fit.go.
+func denseDampedFit(t *testing.T, lmax int, colat, lon, f, w []float64, lambda float64) *Coeffs {
+	t.Helper()
+	type col struct{ l, m, s int }
+	var cols []col
+	for l := 0; l <= lmax; l++ {
+		for m := 0; m <= l; m++ {
+			cols = append(cols, col{l, m, 0})
+			if m > 0 {
+				cols = append(cols, col{l, m, 1})
+			}
+		}
+	}
+	var rows []int
+	for p, v := range w {
+		if v > 0 {
+			rows = append(rows, p)
+		}
+	}
+	nr, nc := len(rows), len(cols)
+	A := mat.NewDense(nr+nc, nc, nil)
+	b := mat.NewDense(nr+nc, 1, nil)
+	for r, p := range rows {
+		pl := Legendre(nil, lmax, colat[p], Canonical)
+		sw := math.Sqrt(w[p])
+		for k, c := range cols {
+			s, co := math.Sincos(float64(c.m) * lon[p])
+			v := co
+			if c.s == 1 {
+				v = s
+			}
+			A.Set(r, k, sw*pl[Index(c.l, c.m)]*v)
+		}
+		b.Set(r, 0, sw*f[p])
+	}
+	for k, c := range cols {
+		A.Set(nr+k, k, math.Sqrt(lambda*float64(c.l*(c.l+1))))
+	}
+	var qr mat.QR
+	qr.Factorize(A)
+	var x mat.Dense
+	if err := qr.SolveTo(&x, false, b); err != nil {
+		t.Fatal(err)
+	}
+	out := NewCoeffs(lmax, Canonical)
+	for k, c := range cols {
+		if c.s == 0 {
+			out.C[Index(c.l, c.m)] = x.At(k, 0)
+		} else {
+			out.S[Index(c.l, c.m)] = x.At(k, 0)
+		}
+	}
+	return out
+}
+
+// TestFitDampedAgainstDense compares damped fits with the dense solution of
+// the same objective (denseDampedFit): on a regular cell-registered grid
+// (no poles) with a polar cap and a patch masked out (conjugate gradients),
+// on a node-registered grid (poles present) restricted to a band of
+// latitudes (whole rings, per-order QR), and at scattered points with
+// relative weights, fewer points than coefficients (only the damping makes
+// that well-posed). The data are not band-limited (degree 18 signal fitted at
+// degree 10, plus noise), so the damping changes the answer everywhere.
+func TestFitDampedAgainstDense(t *testing.T) {
+	const lmax, tol = 10, 1e-8
+	truth := trRandCoeffs(18, 51)
+	noise := rand.New(rand.NewPCG(52, 53))
+	gridPts := func(g *Grid) (colat, lon []float64) {
+		for _, th := range g.Colat {
+			for j := range g.NLon {
+				colat, lon = append(colat, th), append(lon, g.Lon(j))
+			}
+		}
+		return colat, lon
+	}
+	check := func(t *testing.T, got, want *Coeffs, rep *FitReport, method string) {
+		t.Helper()
+		if rep.Method != method {
+			t.Errorf("method %q, want %q", rep.Method, method)
+		}
+		d := trMaxRel(got, want)
+		t.Logf("%s: max |fit - dense| / max |coefficient| = %.3g", rep.Method, d)
+		if d > tol {
+			t.Errorf("damped fit differs from the dense solution by %.3g relative > %g (condition %.3g, %d iterations)", d, tol, rep.Condition, rep.Iter)
+		}
+	}
+	t.Run("cell-registered/masked/cg", func(t *testing.T) {
+		const lambda = 2e-3
+		g := NewLonLat(36, 72, CellRegistered)
+		f := sampleGrid(truth, g)
+		valid := make([]bool, g.Len())
+		w := make([]float64, g.Len())
+		for i, th := range g.Colat {
+			// Cell area (cos top - cos bottom) 2 pi / nlon (spherical zone,
+			// common practice).
+			area := (math.Cos(th-math.Pi/72) - math.Cos(th+math.Pi/72)) * 2 * math.Pi / 72
+			for j := range g.NLon {
+				k := i*g.NLon + j
+				f[k] += 0.05 * noise.NormFloat64()
+				lon := g.Lon(j)
+				valid[k] = th > 0.5 && !(th > 1.5 && th < 2.0 && lon > 1 && lon < 2)
+				if valid[k] {
+					w[k] = area
+				}
+			}
+		}
+		colat, lon := gridPts(g)
+		want := denseDampedFit(t, lmax, colat, lon, f, w, lambda)
+		got, rep, err := FitGrid(lmax, g, f, &FitOptions{Valid: valid, Damping: lambda})
+		if err != nil {
+			t.Fatal(err)
+		}
+		check(t, got, want, rep, "conjugate gradients")
+	})
+	t.Run("node-registered/band/per-order", func(t *testing.T) {
+		const lambda = 5e-3
+		g := NewLonLat(37, 72, NodeRegistered)
+		f := sampleGrid(truth, g)
+		valid := make([]bool, g.Len())
+		w := make([]float64, g.Len())
+		aw := g.AreaWeights() // checked in TestAreaWeights
+		for i, th := range g.Colat {
+			for j := range g.NLon {
+				k := i*g.NLon + j
+				f[k] += 0.05 * noise.NormFloat64()
+				valid[k] = th < 2.3 // pole ring at colatitude 0 included
+				if valid[k] {
+					w[k] = aw[i]
+				}
+			}
+		}
+		colat, lon := gridPts(g)
+		want := denseDampedFit(t, lmax, colat, lon, f, w, lambda)
+		got, rep, err := FitGrid(lmax, g, f, &FitOptions{Valid: valid, Damping: lambda})
+		if err != nil {
+			t.Fatal(err)
+		}
+		check(t, got, want, rep, "per-order QR")
+	})
+	t.Run("points/weighted/underdetermined", func(t *testing.T) {
+		const lambda, n = 1e-2, 100 // 100 points, 121 coefficients
+		r := rand.New(rand.NewPCG(54, 55))
+		colat, lon, f, rw, w := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+		ev := NewEvaluator(truth)
+		for i := range colat {
+			colat[i] = math.Acos(2*r.Float64() - 1)
+			lon[i] = 2 * math.Pi * r.Float64()
+			f[i] = ev.Value(colat[i], lon[i]) + 0.05*r.NormFloat64()
+			rw[i] = 0.5 + r.Float64()
+			w[i] = rw[i] * 4 * math.Pi / n // FitPoints: 4 pi / n per point
+		}
+		want := denseDampedFit(t, lmax, colat, lon, f, w, lambda)
+		got, rep, err := FitPoints(lmax, colat, lon, f, &FitOptions{Weights: rw, Damping: lambda})
+		if err != nil {
+			t.Fatal(err)
+		}
+		check(t, got, want, rep, "conjugate gradients")
+	})
 }

@@ -4,8 +4,9 @@ package main
 // packages do not (yet) offer in the form the command needs.
 
 import (
+	"errors"
 	"fmt"
-	"math"
+	"strings"
 
 	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/flux/sh"
@@ -15,39 +16,48 @@ import (
 func demoGrid() (*tomo.Grid, error) { return tomo.Demo(), nil }
 
 // fitLayer expands the layer's dlnVs up to lmax in the canonical convention
-// by the area-weighted least-squares fit of flux/sh (missing points left
-// out). A degree the samples cannot determine is refused with the largest
-// safe degree.
-func fitLayer(l *tomo.Layer, lmax int) (*sh.Coeffs, error) {
+// by the area-weighted least-squares fit of flux/sh (sh.FitLonLat: missing
+// points left out, a seam column at lon[0] + 360 dropped, a regional
+// longitude range masked rather than stretched round the circle). It
+// returns what the fit found worth telling the user (dropped seam column,
+// partial coverage, condition number). A degree the samples cannot
+// determine is refused with the largest safe degree.
+func fitLayer(l *tomo.Layer, lmax int) (*sh.Coeffs, []string, error) {
 	nlat, nlon := len(l.Lat), len(l.Lon)
 	if nlat < 2 || nlon < 3 {
-		return nil, &tomo.InputError{File: l.Source.Path, Err: fmt.Errorf("the grid has %d x %d points; need at least 2 latitudes and 3 longitudes", nlat, nlon)}
+		return nil, nil, &tomo.InputError{File: l.Source.Path, Err: fmt.Errorf("the grid has %d x %d points; need at least 2 latitudes and 3 longitudes", nlat, nlon)}
 	}
-	colat := make([]float64, nlat)
-	for j := range colat {
-		colat[j] = (90 - l.Lat[nlat-1-j]) * math.Pi / 180 // north to south
-	}
-	g := sh.NewRings(colat, nlon, l.Lon[0]*math.Pi/180)
-	field := make([]float64, nlat*nlon)
-	var valid []bool
-	if l.Valid != nil {
-		valid = make([]bool, nlat*nlon)
-	}
-	for j := 0; j < nlat; j++ {
-		src := nlat - 1 - j
-		for i := 0; i < nlon; i++ {
-			v, ok := l.At(src, i)
-			field[j*nlon+i] = v
-			if valid != nil {
-				valid[j*nlon+i] = ok
-			}
-		}
-	}
-	c, _, err := sh.FitGrid(lmax, g, field, &sh.FitOptions{Valid: valid})
+	c, rep, err := sh.FitLonLat(lmax, l.Lat, l.Lon, l.Values, &sh.FitOptions{Valid: l.Valid})
 	if err != nil {
-		return nil, &tomo.InputError{File: l.Source.Path, Err: fmt.Errorf("%v (--lmax)", err)}
+		var fe *sh.FitError
+		if errors.As(err, &fe) {
+			return nil, nil, &tomo.InputError{File: l.Source.Path, Err: fmt.Errorf("%v; the limit is the conditioning of the fit on the valid points (--lmax)", err)}
+		}
+		return nil, nil, &tomo.InputError{File: l.Source.Path, Err: err}
 	}
-	return c, nil
+	var notes []string
+	for _, w := range rep.Warnings {
+		// The ring order is internal bookkeeping, not news for the user.
+		if strings.HasPrefix(w, "latitudes ascend") {
+			continue
+		}
+		notes = append(notes, "fit: "+w)
+	}
+	return c, notes, nil
+}
+
+// checkLMax refuses an lmax above the largest degree the layer's sampling
+// supports (tomo.SafeDegree) unless forced, naming the one limit that
+// applies: the grid's Nyquist degree or the largest gap in coverage.
+func checkLMax(file string, lmax int, safe tomo.DegreeLimit, force bool) error {
+	if force || lmax <= safe.Lmax {
+		return nil
+	}
+	why := fmt.Sprintf("its grid spacing limits it to the Nyquist degree %d, 180 degrees over the spacing (common practice)", safe.Nyquist)
+	if safe.GapLimit < safe.Nyquist {
+		why = fmt.Sprintf("its largest gap in coverage, %.3g degrees across, leaves structure smaller than that unconstrained (180 degrees over the gap, common practice)", safe.Gap)
+	}
+	return &tomo.InputError{File: file, Err: fmt.Errorf("lmax %d is above degree %d, the largest the input supports: %s; lower --lmax to %d or less, or give --force-lmax to fit the unsupported degrees anyway", lmax, safe.Lmax, why, safe.Lmax)}
 }
 
 // parseTaper reads --taper with sh.ParseTaper (none, cut:L, cos:L1:L2,

@@ -474,10 +474,10 @@ func cmpFloat(name, s string) (float64, error) {
 }
 
 // cmpSelection resolves the layer and degree shared by every model from
-// build's parameters (--depth, --depth-range, --var, --lmax).
+// build's parameters (--depth, --depth-range, --var, --lmax, --force-lmax).
 func cmpSelection(set config.Set) (*config.Spec, error) {
 	s := config.Set{}
-	for _, k := range []string{"depth", "depth-range", "var", "lmax"} {
+	for _, k := range []string{"depth", "depth-range", "var", "lmax", "force-lmax"} {
 		if v, ok := set[k]; ok {
 			s[k] = v
 		}
@@ -589,11 +589,15 @@ func cmpLoad(name, spec string, g *tomo.Grid, sel *config.Spec) (*cmpModel, []st
 		return nil, nil, wrapInput(m.grid.Source.Path, err)
 	}
 	m.safe = tomo.SafeDegree(m.layer)
-	if m.coeffs, err = fitLayer(m.layer, sel.LMax); err != nil {
+	if err := checkLMax(m.file, sel.LMax, m.safe, sel.ForceLMax); err != nil {
+		return nil, nil, err
+	}
+	var notes []string
+	if m.coeffs, notes, err = fitLayer(m.layer, sel.LMax); err != nil {
 		return nil, nil, err
 	}
 	var warns []string
-	for _, w := range m.layer.Warnings {
+	for _, w := range append(m.layer.Warnings, notes...) {
 		warns = append(warns, fmt.Sprintf("model %s: %s", name, w))
 	}
 	if sel.LMax > m.safe.Lmax {
@@ -625,7 +629,7 @@ func cmpProfile(m *cmpModel, sel *config.Spec) ([]*sh.Coeffs, []float64, error) 
 		if err != nil {
 			return nil, nil, wrapInput(g.Source.Path, err)
 		}
-		c, err := fitLayer(l, sel.LMax)
+		c, _, err := fitLayer(l, sel.LMax) // the notes are those of the model's own layer
 		if err != nil {
 			return nil, nil, err
 		}
@@ -1005,7 +1009,7 @@ func cmpConsensusBuild(st *outdir.Stage, kind string, csp *config.Spec, cset con
 		if csp.LMax != meanC.LMax {
 			return nil, nil, nil, fmt.Errorf("compare: consensus lmax %d differs from the comparison's %d", csp.LMax, meanC.LMax)
 		}
-		if _, err := c.get(expKey, func() (any, error) { return mc, nil }); err != nil {
+		if _, err := c.get(expKey, func() (any, error) { return &expansion{c: mc}, nil }); err != nil {
 			return nil, nil, nil, err
 		}
 	case "votes":

@@ -290,7 +290,7 @@ func TestCompareTurned(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, err := fitLayer(l, lmax)
+	c, _, err := fitLayer(l, lmax)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -417,8 +417,8 @@ func BenchmarkCompareDemo(b *testing.B) {
 // TestCompareMissingData: a model without data north of 60 degrees is fitted
 // on its valid points only (a NaN taken as data would make every
 // coefficient NaN), it still correlates with the complete model (the cap
-// holds 6.7 % of the sphere, (1 - sin 60)/2), and the warning about the
-// degree its coverage supports names the model.
+// holds 6.7 % of the sphere, (1 - sin 60)/2), and the degree its coverage
+// supports is refused, or with --force-lmax warned about naming the model.
 func TestCompareMissingData(t *testing.T) {
 	t.Chdir(t.TempDir())
 	data, err := os.ReadFile(demoFile("brindle.txt"))
@@ -435,7 +435,12 @@ func TestCompareMissingData(t *testing.T) {
 		b.WriteString(line + "\n")
 	}
 	writeFile(t, "capless.txt", b.String())
-	_, errs := mustCLI(t, "compare", demoFile("brindle.txt"), "capless.txt", "--lmax", "8", "--out", "cmp")
+	// Without --force-lmax the degree is refused, as build refuses it.
+	if _, errs, code := cli([]string{"compare", demoFile("brindle.txt"), "capless.txt", "--lmax", "8", "--out", "cmp"}, ""); code != 2 ||
+		!strings.Contains(errs, "capless.txt: lmax 8 is above degree") {
+		t.Errorf("exit %d, stderr %q; want the coverage refusal", code, errs)
+	}
+	_, errs := mustCLI(t, "compare", demoFile("brindle.txt"), "capless.txt", "--lmax", "8", "--force-lmax", "--out", "cmp")
 	if !strings.Contains(errs, "warning: model capless: lmax 8 is above degree") {
 		t.Errorf("stderr %q lacks the coverage warning", errs)
 	}

@@ -29,8 +29,9 @@ declared with --from-norm (and --from-condon-shortley if it has the phase).
 
 With --grid, the expansion is sampled on a grid (gauss:NLAT, equiangular:N
 or lonlat:STEP); with --lmax, a grid file (text, CSV, netCDF) is expanded
-to degree N by quadrature over its cells (missing values are replaced by
-the mean).
+to degree N by the same least-squares fit as build (only the valid points
+count; a degree above what the grid's spacing and coverage support is
+refused unless --force-lmax is given).
 `
 
 const convertExample = `
@@ -44,7 +45,7 @@ Examples:
 func runConvert(stdout, stderr io.Writer, args []string) error {
 	p := newParser("convert", stdout, convertHelp, convertExample)
 	var out, norm, form, fromNorm, fromForm, grid string
-	var cs, fromCS, noDeg0, force bool
+	var cs, fromCS, noDeg0, force, forceLMax bool
 	lmax := 0
 	norm, form = "orthonormal", "real"
 	p.stringVar(&out, "out", "FILE", "output file (- for standard output)")
@@ -57,6 +58,7 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 	p.stringVar(&fromForm, "from-form", "F", "declare the form of a plain table: real or complex")
 	p.stringVar(&grid, "grid", "G", "sample the coefficients on this grid instead of converting them")
 	p.intVar(&lmax, "lmax", "N", "expand a grid file to this degree")
+	p.boolVar(&forceLMax, "force-lmax", "with --lmax, fit a degree above what the grid supports (refused otherwise)")
 	p.boolVar(&force, "force", "overwrite OUT if it exists")
 	pos, err := p.parse(args)
 	if err != nil {
@@ -102,15 +104,12 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 		if err != nil {
 			return err
 		}
-		c, missing, err := fitGrid(g, lmax)
+		c, notes, err := fitGrid(g, lmax, forceLMax)
 		if err != nil {
 			return err
 		}
-		if missing > 0 {
-			warns = append(warns, fmt.Sprintf("%s: %d missing values were replaced by the mean before the expansion", name, missing))
-		}
-		if 2*lmax+1 > g.NLon() || lmax+1 > g.NLat() {
-			warns = append(warns, fmt.Sprintf("%s: lmax %d is more than a %d x %d grid resolves", name, lmax, g.NLon(), g.NLat()))
+		for _, n := range notes {
+			warns = append(warns, name+": "+n)
 		}
 		if format == export.FormatNetCDF {
 			return usagef("convert", "coefficients are written as .txt, .csv or .json, not %s", out)
@@ -166,6 +165,14 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 			for j := 0; j < sg.NLon; j++ {
 				eg.Lon = append(eg.Lon, round6(sg.Lon(j)*180/math.Pi))
 			}
+			// The grid written is this one, not the one of the build that
+			// made the coefficients.
+			params := map[string]string{}
+			for k, v := range m.Params {
+				params[k] = v
+			}
+			params["grid"] = grid
+			m.Params = params
 			if err := export.WriteGrid(&b, format, eg, &m); err != nil {
 				return err
 			}
@@ -196,8 +203,11 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 }
 
 // fitGrid expands the values of a single-layer grid (the deepest level of a
-// grid with depths) without any unit conversion.
-func fitGrid(g *tomo.Grid, lmax int) (*sh.Coeffs, int, error) {
+// grid with depths) without any unit conversion, by build's least-squares
+// fit on the valid points, after the coverage check of build (checkLMax).
+// The notes say what the user should know (points left out, the fit's
+// own notes, an lmax above what the grid supports when forced).
+func fitGrid(g *tomo.Grid, lmax int, force bool) (*sh.Coeffs, []string, error) {
 	nlat, nlon := g.NLat(), g.NLon()
 	off := (g.NDepth() - 1) * nlat * nlon
 	vals := g.Values[off : off+nlat*nlon]
@@ -211,18 +221,21 @@ func fitGrid(g *tomo.Grid, lmax int) (*sh.Coeffs, int, error) {
 			}
 		}
 	}
+	if missing == len(vals) {
+		return nil, nil, inputErrorf("%s: no valid values", g.Source.Path)
+	}
 	l := &tomo.Layer{Lon: g.Lon, Lat: g.Lat, Values: vals, Valid: valid, Reg: g.Reg, Source: g.Source}
-	var s, n float64
-	for i, v := range vals {
-		if valid == nil || valid[i] {
-			s += v
-			n++
-		}
+	safe := tomo.SafeDegree(l)
+	if err := checkLMax(g.Source.Path, lmax, safe, force); err != nil {
+		return nil, nil, err
 	}
-	if n == 0 {
-		return nil, 0, inputErrorf("%s: no valid values", g.Source.Path)
+	var notes []string
+	if missing > 0 {
+		notes = append(notes, fmt.Sprintf("%d of %d points have no value and were left out of the fit", missing, len(vals)))
 	}
-	l.Mean = s / n
-	c, err := fitLayer(l, lmax)
-	return c, missing, err
+	if lmax > safe.Lmax {
+		notes = append(notes, fmt.Sprintf("lmax above the resolution: lmax %d is above degree %d, the highest the grid supports: the degrees above are fitting artefacts, not structure", lmax, safe.Lmax))
+	}
+	c, fitNotes, err := fitLayer(l, lmax)
+	return c, append(notes, fitNotes...), err
 }

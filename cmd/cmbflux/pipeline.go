@@ -114,18 +114,34 @@ func wrapInput(file string, err error) error {
 // pattern is the flux pattern of one input layer, degree, taper and
 // rotation: everything that does not depend on the amplitude.
 type pattern struct {
-	flux *flux.Pattern
-	mean float64 // area mean of dlnVs of the layer (fraction), degree 0 of the fit
+	flux  *flux.Pattern
+	mean  float64  // area mean of dlnVs of the layer (fraction), degree 0 of the fit
+	notes []string // what the fit reported (seam column, coverage, conditioning)
+}
+
+// expansion is the fit of a layer to one degree, with the fit's notes.
+type expansion struct {
+	c     *sh.Coeffs
+	notes []string
 }
 
 func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 	fitDeg := max(sp.LMax, 1)
 	expKey := "expansion " + sourceKey(sp) + fmt.Sprintf(" lmax=%d", fitDeg)
-	v, err := c.get(expKey, func() (any, error) { return fitLayer(src.layer, fitDeg) })
+	if err := checkLMax(src.name, sp.LMax, src.safe, sp.ForceLMax); err != nil {
+		return nil, err
+	}
+	v, err := c.get(expKey, func() (any, error) {
+		c, notes, err := fitLayer(src.layer, fitDeg)
+		if err != nil {
+			return nil, err
+		}
+		return &expansion{c: c, notes: notes}, nil
+	})
 	if err != nil {
 		return nil, err
 	}
-	raw := v.(*sh.Coeffs)
+	raw, notes := v.(*expansion).c, v.(*expansion).notes
 	key := expKey + fmt.Sprintf(" taper=%s rotate=%g", sp.Taper, sp.Rotate)
 	if sp.QStarOnGrid {
 		key += " qstar-on=" + sp.Grid
@@ -152,7 +168,7 @@ func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
 				return nil, &config.Error{Key: "qstar-on", Err: err}
 			}
 		}
-		return &pattern{flux: fp, mean: d.C[0] / math.Sqrt(4*math.Pi)}, nil
+		return &pattern{flux: fp, mean: d.C[0] / math.Sqrt(4*math.Pi), notes: notes}, nil
 	})
 	if err != nil {
 		return nil, err
@@ -348,6 +364,9 @@ func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) [
 	}
 	for _, lw := range src.layer.Warnings {
 		w = append(w, "input: "+src.name+": "+lw)
+	}
+	for _, n := range pt.notes {
+		w = append(w, "input: "+src.name+": "+n)
 	}
 	sort.Strings(w)
 	return w

@@ -333,40 +333,6 @@ func TestQStarOnGrid(t *testing.T) {
 	}
 }
 
-func TestLmaxAboveResolutionWarns(t *testing.T) {
-	t.Chdir(t.TempDir())
-	// The degree-1 test pattern with a hole of 15 degrees radius around
-	// (0 E, 0 N): structure smaller than the hole is not constrained
-	// (SafeDegree, common practice), so lmax 8 draws the warning.
-	g := &tomo.Grid{Name: "dvs", Units: "percent", Reg: tomo.CellRegistered}
-	for lon := 1.0; lon < 360; lon += 2 {
-		g.Lon = append(g.Lon, lon)
-	}
-	for lat := -89.0; lat < 90; lat += 2 {
-		g.Lat = append(g.Lat, lat)
-	}
-	for _, lat := range g.Lat {
-		for _, lon := range g.Lon {
-			v := -math.Sin(lat * math.Pi / 180)
-			l := math.Min(lon, 360-lon)
-			if l*l+lat*lat < 15*15 {
-				v = math.NaN()
-			}
-			g.Values = append(g.Values, v)
-		}
-	}
-	var b bytes.Buffer
-	if err := tomo.WriteText(&b, g); err != nil {
-		t.Fatal(err)
-	}
-	writeFile(t, "holed.txt", b.String())
-	_, errs := mustCLI(t, "build", "--input", "holed.txt", "--qstar", "1", "--qmean", "80", "--lmax", "8", "--out", "bc")
-	s := loadSummary(t, "bc")
-	if s.LMaxResolved >= 8 || !strings.Contains(errs, "lmax above the resolution") || !strings.Contains(strings.Join(s.Warnings, "\n"), "lmax above the resolution") {
-		t.Errorf("resolved degree %d; stderr:\n%s", s.LMaxResolved, errs)
-	}
-}
-
 func TestConvertPlainTableNormalizations(t *testing.T) {
 	t.Chdir(t.TempDir())
 	// A Schmidt semi-normalized table with C_10 = C_11 = 1. Schmidt harmonics

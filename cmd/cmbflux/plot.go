@@ -154,7 +154,7 @@ func plotTomo(g *tomo.Grid, lmax int) (*figure.Map, []float64, string, string, e
 	if lmax == 0 {
 		lmax = min(60, max(1, min(nlat-1, (nlon-1)/2)))
 	}
-	c, _, err := fitGrid(g, lmax)
+	c, _, err := fitGrid(g, lmax, true) // a spectrum to look at, not a boundary condition
 	if err != nil {
 		return nil, nil, "", "", err
 	}

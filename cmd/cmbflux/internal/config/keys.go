@@ -48,6 +48,7 @@ var BuildKeys = []Key{
 	{Name: "depth", Kind: Float, Arg: "KM", Group: "Input", Usage: "use the layer nearest to this depth (km)"},
 	{Name: "depth-range", Kind: String, Arg: "KM:KM", Group: "Input", Usage: "average the layers in this depth range, weighted by radius^2"},
 	{Name: "lmax", Kind: Int, Arg: "N", Group: "Pattern", Usage: "truncation degree (default 12)"},
+	{Name: "force-lmax", Kind: Bool, Group: "Pattern", Usage: "fit an lmax above the degree the input's grid spacing and coverage support (refused otherwise); the degrees above are then fitting artefacts"},
 	{Name: "taper", Kind: String, Arg: "SPEC", Group: "Pattern", Usage: "none, cut:L, cos:L1:L2 (raised-cosine roll-off from degree L1 to L2) or gauss:DEG (Gaussian, half-width in degrees of arc)"},
 	{Name: "rotate", Kind: Float, Arg: "DEG", Group: "Pattern", Usage: "turn the pattern eastward about the rotation axis by DEG degrees"},
 	{Name: "qstar", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "heterogeneity q* = (q_max - q_min) / q_mean of the output field"},

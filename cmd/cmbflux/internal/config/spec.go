@@ -34,9 +34,12 @@ type Spec struct {
 	DepthMin, DepthMax float64 // km; used when HasRange
 	HasRange           bool
 
-	LMax   int
-	Taper  string // as written; "none" by default
-	Rotate float64
+	LMax int
+	// ForceLMax fits an LMax above what the input's sampling supports
+	// (tomo.SafeDegree) instead of refusing it.
+	ForceLMax bool
+	Taper     string // as written; "none" by default
+	Rotate    float64
 
 	QStar    float64
 	HasQStar bool
@@ -144,6 +147,7 @@ func Resolve(s Set) (*Spec, error) {
 		}
 		sp.LMax = n
 	}
+	sp.ForceLMax = b("force-lmax")
 	if v, ok := s["taper"]; ok {
 		sp.Taper = strings.TrimSpace(v.Raw)
 	}

@@ -1,0 +1,144 @@
+package main
+
+import (
+	"bytes"
+	"math"
+	"os"
+	"strings"
+	"testing"
+
+	"cmbflux/tomo"
+)
+
+// degree1Layer samples f = 2 + cos(lat) cos(lon) + 0.5 sin(lat) on the
+// given longitudes and a 2-degree node grid of latitudes.
+func degree1Layer(lons []float64) *tomo.Layer {
+	l := &tomo.Layer{Lon: lons, Source: tomo.Provenance{Path: "table"}}
+	for lat := -90.0; lat <= 90; lat += 2 {
+		l.Lat = append(l.Lat, lat)
+	}
+	for _, lat := range l.Lat {
+		for _, lon := range l.Lon {
+			p, q := lat*math.Pi/180, lon*math.Pi/180
+			l.Values = append(l.Values, 2+math.Cos(p)*math.Cos(q)+0.5*math.Sin(p))
+		}
+	}
+	return l
+}
+
+// TestFitLayerSeamAndRegional: a table with both 0 and 360 E, and a
+// regional table covering 0..180 E only, are fitted to the exact
+// coefficients of f = 2 + cos(lat) cos(lon) + 0.5 sin(lat). With the
+// orthonormal harmonics Y_00 = 1/sqrt(4 pi), Y_10 = sqrt(3/(4 pi)) cos(theta)
+// and Y_11 = sqrt(3/(4 pi)) sin(theta) cos(phi) without the Condon-Shortley
+// phase (Y^2 integrates to 1 over the sphere; Arfken & Weber, Mathematical
+// Methods for Physicists, sec. 12.6, from memory):
+//
+//	C_00 = 2 sqrt(4 pi)          = 7.0898154036220641
+//	C_10 = 0.5 sqrt(4 pi / 3)    = 1.0233267079464885
+//	C_11 = sqrt(4 pi / 3)        = 2.0466534158929770
+//
+// (the values by Python's math module, sqrt and pi). Taking the seam column
+// as a 181st longitude of the circle, or stretching 0..180 E round it,
+// misplaces every longitude and breaks C_11.
+func TestFitLayerSeamAndRegional(t *testing.T) {
+	const tol = 1e-9
+	var seam, regional []float64
+	for lon := 0.0; lon <= 360; lon += 2 {
+		seam = append(seam, lon)
+		if lon <= 180 {
+			regional = append(regional, lon)
+		}
+	}
+	for _, tc := range []struct {
+		name string
+		lons []float64
+		note string
+	}{
+		{"seam 0 and 360", seam, "repeats the first"},
+		{"regional 0..180 E", regional, "cover 91 of 180 columns"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c, notes, err := fitLayer(degree1Layer(tc.lons), 1)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, w := range []struct {
+				l, m int
+				want float64
+			}{{0, 0, 7.0898154036220641}, {1, 0, 1.0233267079464885}, {1, 1, 2.0466534158929770}} {
+				if got, s := c.At(w.l, w.m); math.Abs(got-w.want) > tol || math.Abs(s) > tol {
+					t.Errorf("C_%d%d, S_%d%d = %.16g, %.3g; want %.16g, 0", w.l, w.m, w.l, w.m, got, s, w.want)
+				}
+			}
+			if !strings.Contains(strings.Join(notes, "\n"), tc.note) {
+				t.Errorf("notes %q lack %q", notes, tc.note)
+			}
+		})
+	}
+}
+
+// TestLmaxAboveCoverageRefused: the degree-1 pattern with a hole of 15
+// degrees radius around (0 E, 0 N). Structure smaller than the hole is not
+// constrained (180 degrees over the gap's 30-degree diameter gives degree
+// 6; tomo.SafeDegree measures 28 degrees on the 2-degree cells, common
+// practice), so lmax 8 is refused with that one number and the limit that
+// sets it, exit status 2 and no output; --force-lmax builds with the
+// warning.
+func TestLmaxAboveCoverageRefused(t *testing.T) {
+	t.Chdir(t.TempDir())
+	g := &tomo.Grid{Name: "dvs", Units: "percent", Reg: tomo.CellRegistered}
+	for lon := 1.0; lon < 360; lon += 2 {
+		g.Lon = append(g.Lon, lon)
+	}
+	for lat := -89.0; lat < 90; lat += 2 {
+		g.Lat = append(g.Lat, lat)
+	}
+	for _, lat := range g.Lat {
+		for _, lon := range g.Lon {
+			v := -math.Sin(lat * math.Pi / 180)
+			l := math.Min(lon, 360-lon)
+			if l*l+lat*lat < 15*15 {
+				v = math.NaN()
+			}
+			g.Values = append(g.Values, v)
+		}
+	}
+	var b bytes.Buffer
+	if err := tomo.WriteText(&b, g); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, "holed.txt", b.String())
+	args := []string{"build", "--input", "holed.txt", "--qstar", "1", "--qmean", "80", "--lmax", "8", "--out", "bc"}
+	_, errs, code := cli(args, "")
+	if code != 2 || !strings.Contains(errs, "holed.txt: lmax 8 is above degree 6") || !strings.Contains(errs, "largest gap") ||
+		!strings.Contains(errs, "--force-lmax") || strings.Contains(errs, "safe degree is") {
+		t.Errorf("exit %d, stderr %q; want exit 2 naming degree 6 and the gap", code, errs)
+	}
+	onlyEntries(t, "holed.txt")
+	_, errs = mustCLI(t, append(args, "--force-lmax")...)
+	s := loadSummary(t, "bc")
+	if s.LMaxResolved != 6 || !strings.Contains(errs, "lmax above the resolution") || !strings.Contains(strings.Join(s.Warnings, "\n"), "lmax above the resolution") {
+		t.Errorf("resolved degree %d; stderr:\n%s", s.LMaxResolved, errs)
+	}
+	// convert refuses the same degree for the same reason.
+	_, errs, code = cli([]string{"convert", "holed.txt", "--lmax", "8", "--out", "refit.txt"}, "")
+	if code != 2 || !strings.Contains(errs, "lmax 8 is above degree 6") {
+		t.Errorf("convert: exit %d, stderr %q", code, errs)
+	}
+}
+
+// TestConvertGridHeaderNamesItsGrid: sampling a build's coefficients on
+// another grid writes that grid, not the build's, as param.grid.
+func TestConvertGridHeaderNamesItsGrid(t *testing.T) {
+	t.Chdir(t.TempDir())
+	mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--lmax", "4", "--grid", "lonlat:2", "--out", "bc")
+	mustCLI(t, "convert", "bc/coefficients.txt", "--grid", "lonlat:10", "--out", "g.txt")
+	data, err := os.ReadFile("g.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := string(data); !strings.Contains(s, "# param.grid = lonlat:10\n") || strings.Contains(s, "lonlat:2\n") {
+		t.Errorf("header of g.txt does not name lonlat:10 alone:\n%.600s", s)
+	}
+}

@@ -143,6 +143,10 @@ func TestFitDamping(t *testing.T) {
 			if d := trMaxRel(got, want); d > tol {
 				t.Errorf("%s: damped coefficients off by %.3g > %.1g", rep.Method, d, tol)
 			}
+			wantMethod := map[string]string{"per-order": "per-order QR", "cg": "conjugate gradients"}[tc.name]
+			if rep.Method != wantMethod {
+				t.Errorf("solver %q, want %q", rep.Method, wantMethod)
+			}
 		})
 	}
 }

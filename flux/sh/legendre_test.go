@@ -19,8 +19,10 @@ var fourPi = Convention{Norm: FourPi}
 
 // TestLegendreClosedForms checks degrees 0-3 against closed forms.
 func TestLegendreClosedForms(t *testing.T) {
-	// Ferrers functions without phase, Abramowitz & Stegun 1964, 8.6.5-8.6.7
-	// and Table 8.? (P_l^m = (1-x^2)^(m/2) d^m P_l/dx^m); the 4-pi
+	// Ferrers functions without phase, P_l^m = (1-x^2)^(m/2) d^m P_l/dx^m
+	// (Abramowitz & Stegun 1964, ch. 8, sec. 8.6, equation numbers from
+	// memory), applied to the Legendre polynomials P_0..P_3 (A&S 22.3.8 and
+	// Table 22.9, from memory); the 4-pi
 	// normalized forms P10 = sqrt(3) cos, P11 = sqrt(3) sin,
 	// P20 = sqrt(5)(3cos^2-1)/2, P21 = sqrt(15) sin cos, P22 = sqrt(15)/2 sin^2
 	// are listed in references.md (derived from A&S ch. 8).

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"testing"
 )
 
@@ -328,5 +329,33 @@ func TestPointsOnRings(t *testing.T) {
 		if math.Abs(f[k]-want[s]) > tol {
 			t.Fatalf("point %d: %v, grid synthesis %v", k, f[k], want[s])
 		}
+	}
+}
+
+// TestAnalysisMemory511 checks the memory target of the issue for one
+// analysis at lmax 511 on the Gauss-Legendre grid 512 x 1024, plan
+// included: under 64 MiB allocated in total (runtime.MemStats.TotalAlloc,
+// bytes allocated by this goroutine's calls; nothing else runs meanwhile).
+// A table growing like L^3 would need 512^3/6 doubles = 180 MB, and one
+// like nlat L^2 even more, so the check fails for either.
+func TestAnalysisMemory511(t *testing.T) {
+	if testing.Short() {
+		t.Skip("lmax 511 in -short mode")
+	}
+	const lmax, limit = 511, 64 << 20
+	g := NewGaussLegendre(lmax+1, 2*lmax+2)
+	f := NewTransform(lmax, g).Synthesis(nil, trRandCoeffs(lmax, 2))
+	runtime.GC()
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	c := NewTransform(lmax, g).Analysis(nil, f)
+	runtime.ReadMemStats(&after)
+	got := after.TotalAlloc - before.TotalAlloc
+	t.Logf("plan and analysis at lmax 511 allocated %.1f MiB", float64(got)/(1<<20))
+	if got >= limit {
+		t.Errorf("plan and analysis at lmax 511 allocated %d bytes, want < 64 MiB", got)
+	}
+	if c.LMax != lmax {
+		t.Fatalf("analysis returned lmax %d", c.LMax)
 	}
 }

@@ -13,10 +13,10 @@ const rad2deg = 180 / math.Pi
 // maxLocal caps the local extrema of each kind refined for the area
 // fractions (extrema with every). A region hidden inside one cell has at
 // most the cell's area, about pi / (4 nr^2) of the sphere for nr rings. A
-// white spectrum of degree L has about L^2/5 local minima on the search
-// grid, tomography-like red spectra far fewer (measured), so the cap binds
-// only above degree about 45, where a cell is below 4e-5 of the sphere.
-// Above minCellFraction's degree (about 90) no extra extremum is refined.
+// white spectrum of degree L has about L^2/5 local minima, tomography-like
+// red spectra far fewer (measured), so the cap binds only above degree
+// about 45; with the default 6x oversampling cells are then already below
+// minCellFraction, and no extra extremum is refined at all.
 const maxLocal = 400
 
 // minCellFraction is the largest cell, as a fraction of the sphere, below

@@ -137,6 +137,7 @@ type fftStage struct {
 	r, m, s int          // radix, remaining length / r, stride
 	w       []complex128 // w[p*(r-1)+u-1] = e^{-2 pi i p u/(r m)}
 	root    []complex128 // e^{-2 pi i u/r}, u = 0..r-1 (generic radix)
+	buf     []complex128 // scratch of length r for radices above 16 (generic radix)
 }
 
 func newCFFT(n int) *cfft {
@@ -163,6 +164,9 @@ func newCFFT(n int) *cfft {
 	for _, r := range radices {
 		m := cur / r
 		st := fftStage{r: r, m: m, s: s, w: make([]complex128, m*(r-1)), root: make([]complex128, r)}
+		if r > 16 {
+			st.buf = make([]complex128, r)
+		}
 		for p := range m {
 			for u := 1; u < r; u++ {
 				sn, cs := math.Sincos(-2 * math.Pi * float64(p*u) / float64(cur))
@@ -267,7 +271,7 @@ func radixG(st *fftStage, x, y []complex128) {
 	var buf [16]complex128
 	a := buf[:0]
 	if r > len(buf) {
-		a = make([]complex128, r)
+		a = st.buf[:r]
 	} else {
 		a = buf[:r]
 	}

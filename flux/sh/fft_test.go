@@ -229,3 +229,21 @@ func largestPrimeFactor(n int) int {
 	}
 	return max(p, n)
 }
+
+// TestRealFFTNoAlloc: a plan's transforms allocate nothing, also for
+// lengths with a prime factor above 16 that takes the generic radix (127 is
+// the nlon = 2 lmax + 1 of lmax 63; 2 x 127, 2 x 37 x 73), so that repeated
+// transforms do not allocate (as transform.go documents).
+func TestRealFFTNoAlloc(t *testing.T) {
+	for _, n := range []int{127, 254, 5402, 360, 1023} {
+		f := newRealFFT(n)
+		x := make([]float64, n)
+		X := make([]complex128, n/2+1)
+		for i := range x {
+			x[i] = float64(i%5) - 2
+		}
+		if a := testing.AllocsPerRun(5, func() { f.forward(X, x); f.backward(x, X) }); a != 0 {
+			t.Errorf("n=%d: %v allocations per forward+backward, want 0", n, a)
+		}
+	}
+}

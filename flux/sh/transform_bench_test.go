@@ -20,6 +20,16 @@ import (
 //	synthesis  2.1   2.6   3.1   3.3
 //	analysis   2.6   2.9   3.9   3.9
 //
+// Re-measured by wall clock on 2026-12-02 (same machine, load average 3-4,
+// go test -bench -count=5 against the harness's run.sh in the same session;
+// best Go call time over best C call time):
+//
+//	lmax        63   127   255   511
+//	synthesis  1.7   2.8   3.2   3.7
+//	analysis   2.2   2.9   4.3   4.5
+//
+// so the target (within 2x at lmax 255 and 511) is not met yet.
+//
 // The Legendre sums are about 85 % of the time; they run near 3 cycles per
 // (l, m, ring pair) in scalar code, against 8-wide vectors in libsharp.
 // The threads=2 variants (Workers = 2) showed no reliable speed-up in

@@ -78,3 +78,77 @@ func taperWeights(spec string, lmax int) ([]float64, error) {
 	}
 	return t.Weights(nil, lmax), nil
 }
+
+// readKeys are the build parameters that say how an input file is read
+// and its values converted to dlnVs (readOptions, unitOptions).
+var readKeys = []string{"units", "vref", "force-amplitude", "missing", "lon-name", "lat-name", "depth-name", "vertical"}
+
+// readOptions returns the reading options of a resolved build.
+func readOptions(sp *config.Spec) tomo.ReadOptions {
+	return tomo.ReadOptions{Var: sp.Var, LonName: sp.LonName, LatName: sp.LatName, DepthName: sp.DepthName,
+		Vertical: sp.Vertical, Missing: sp.Missing}
+}
+
+// unitOptions returns the unit conversion of a resolved build.
+func unitOptions(sp *config.Spec) tomo.UnitOptions {
+	return tomo.UnitOptions{Units: sp.Units, RefVelocity: sp.VRef, RefLayerMean: sp.VRefMean, Force: sp.ForceAmplitude}
+}
+
+// flagHintReplacements turn the tomo package's hints, which name its
+// options in words, into the flags of the command.
+var flagHintReplacements = []struct{ old, new string }{
+	{"name it with the longitude-variable option", "name it with --lon-name"},
+	{"name it with the latitude-variable option", "name it with --lat-name"},
+	{"name the one to read with the variable option", "name the one to read with --var"},
+	{"force the values if they are real", "give --force-amplitude if they are real"},
+	{"so give them explicitly if", "so give --units if"},
+	{"give the units explicitly", "give the units with --units"},
+	{"give v_ref in km/s, or take each depth's mean velocity as the reference", "give --vref KMS, or --vref mean to take each depth's mean velocity as the reference"},
+	{"declare the units (a '# units:' line in a text or CSV file, the units attribute in netCDF)", "declare the units (--units, a '# units:' line in a text or CSV file, the units attribute in netCDF)"},
+}
+
+// flagHint rewrites a message of the tomo package so that its hints name
+// the command's flags (--units, --vref, --force-amplitude, --var,
+// --lon-name, --lat-name, --depth-name).
+func flagHint(msg string) string {
+	for _, r := range flagHintReplacements {
+		msg = strings.ReplaceAll(msg, r.old, r.new)
+	}
+	for _, c := range []struct{ what, flag string }{
+		{"longitude", "--lon-name"}, {"latitude", "--lat-name"}, {"depth or radius", "--depth-name"},
+	} {
+		if strings.Contains(msg, "no "+c.what+" column (") {
+			msg = strings.Replace(msg, "name it or choose it explicitly", "rename it or choose it with "+c.flag, 1)
+		}
+		msg = strings.ReplaceAll(msg, "both look like the "+c.what+"; choose one explicitly", "both look like the "+c.what+"; choose one with "+c.flag)
+	}
+	if strings.Contains(msg, "candidate value columns") {
+		msg = strings.Replace(msg, "choose one explicitly", "choose one with --var", 1)
+	}
+	return msg
+}
+
+// hinted is an error whose text names the command's flags (flagHint); it
+// unwraps to the original, so its exit status is unchanged.
+type hinted struct {
+	msg string
+	err error
+}
+
+// Error implements the error interface.
+func (h *hinted) Error() string { return h.msg }
+
+// Unwrap returns the original error.
+func (h *hinted) Unwrap() error { return h.err }
+
+// withFlagHints returns err with its hints rewritten by flagHint; nil stays
+// nil and an error without such hints is returned as it is.
+func withFlagHints(err error) error {
+	if err == nil {
+		return nil
+	}
+	if msg := flagHint(err.Error()); msg != err.Error() {
+		return &hinted{msg: msg, err: err}
+	}
+	return err
+}

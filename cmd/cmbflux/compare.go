@@ -474,10 +474,11 @@ func cmpFloat(name, s string) (float64, error) {
 }
 
 // cmpSelection resolves the layer and degree shared by every model from
-// build's parameters (--depth, --depth-range, --var, --lmax, --force-lmax).
+// build's parameters (--depth, --depth-range, --var, --lmax, --force-lmax
+// and the reading options readKeys).
 func cmpSelection(set config.Set) (*config.Spec, error) {
 	s := config.Set{}
-	for _, k := range []string{"depth", "depth-range", "var", "lmax", "force-lmax"} {
+	for _, k := range append([]string{"depth", "depth-range", "var", "lmax", "force-lmax"}, readKeys...) {
 		if v, ok := set[k]; ok {
 			s[k] = v
 		}
@@ -494,7 +495,7 @@ func cmpSelection(set config.Set) (*config.Spec, error) {
 // cmpLayerOptions is the layer choice of a resolved build (see
 // cache.source).
 func cmpLayerOptions(sp *config.Spec) tomo.LayerOptions {
-	lo := tomo.LayerOptions{}
+	lo := tomo.LayerOptions{Units: unitOptions(sp)}
 	switch {
 	case sp.HasRange:
 		lo.Top, lo.Bottom = sp.DepthMin, sp.DepthMax
@@ -578,15 +579,15 @@ func cmpLoad(name, spec string, g *tomo.Grid, sel *config.Spec) (*cmpModel, []st
 	case spec == "demo":
 		m.grid, m.file = tomo.Demo(), tomo.DemoName
 	case spec == "-":
-		m.grid, err = tomo.Read("<stdin>", stdin, tomo.ReadOptions{Var: sel.Var})
+		m.grid, err = tomo.Read("<stdin>", stdin, readOptions(sel))
 	default:
-		m.grid, err = tomo.ReadFile(spec, tomo.ReadOptions{Var: sel.Var})
+		m.grid, err = tomo.ReadFile(spec, readOptions(sel))
 	}
 	if err != nil {
-		return nil, nil, asInput(err)
+		return nil, nil, withFlagHints(asInput(err))
 	}
 	if m.layer, err = tomo.SelectLayer(m.grid, cmpLayerOptions(sel)); err != nil {
-		return nil, nil, wrapInput(m.grid.Source.Path, err)
+		return nil, nil, withFlagHints(wrapInput(m.grid.Source.Path, err))
 	}
 	m.safe = tomo.SafeDegree(m.layer)
 	if err := checkLMax(m.file, sel.LMax, m.safe, sel.ForceLMax); err != nil {
@@ -598,7 +599,7 @@ func cmpLoad(name, spec string, g *tomo.Grid, sel *config.Spec) (*cmpModel, []st
 	}
 	var warns []string
 	for _, w := range append(m.layer.Warnings, notes...) {
-		warns = append(warns, fmt.Sprintf("model %s: %s", name, w))
+		warns = append(warns, fmt.Sprintf("model %s: %s", name, flagHint(w)))
 	}
 	if sel.LMax > m.safe.Lmax {
 		warns = append(warns, fmt.Sprintf("model %s: lmax %d is above degree %d, the highest its grid resolves: the degrees above are fitting artefacts, not structure", name, sel.LMax, m.safe.Lmax))
@@ -619,15 +620,15 @@ func cmpProfile(m *cmpModel, sel *config.Spec) ([]*sh.Coeffs, []float64, error) 
 		if sel.HasRange && (d < sel.DepthMin-1e-6 || d > sel.DepthMax+1e-6) {
 			continue
 		}
-		lo := tomo.LayerOptions{Depth: d}
+		lo := tomo.LayerOptions{Depth: d, Units: unitOptions(sel)}
 		if d == 0 {
 			// Depth 0 asks SelectLayer for the deepest level; a thin range
 			// picks the surface level instead.
-			lo = tomo.LayerOptions{Top: 0, Bottom: 1e-3}
+			lo = tomo.LayerOptions{Top: 0, Bottom: 1e-3, Units: unitOptions(sel)}
 		}
 		l, err := tomo.SelectLayer(g, lo)
 		if err != nil {
-			return nil, nil, wrapInput(g.Source.Path, err)
+			return nil, nil, withFlagHints(wrapInput(g.Source.Path, err))
 		}
 		c, _, err := fitLayer(l, sel.LMax) // the notes are those of the model's own layer
 		if err != nil {

@@ -9,12 +9,13 @@ import (
 	"path/filepath"
 	"strings"
 
+	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/export"
 	"cmbflux/flux/sh"
 	"cmbflux/tomo"
 )
 
-const inspectHelp = `Usage: cmbflux inspect FILE [--var NAME] [--json]
+const inspectHelp = `Usage: cmbflux inspect FILE [--var NAME] [reading flags] [--json]
        cmbflux inspect --demo [--json]
        cmbflux inspect DIR
 
@@ -28,6 +29,8 @@ levels, value range, the units cmbflux infers and why, missing values,
 coverage and the highest degree the sampling resolves. For a coefficient
 file (txt, csv, json as written by cmbflux): its convention, form, lmax,
 quantity, units and the power per degree. FILE - reads standard input.
+The reading flags (--units, --vref, --missing, --lon-name, ...) are those
+of build, so inspect shows what build would read.
 `
 
 const inspectExample = `
@@ -94,10 +97,45 @@ func runInspect(stdout, stderr io.Writer, args []string) error {
 	p.boolVar(&asJSON, "json", "print JSON instead of text")
 	p.boolVar(&demo, "demo", "inspect the embedded demo scenario")
 	p.stringVar(&varName, "var", "NAME", "variable (netCDF) or column (CSV) to read")
+	// The reading flags of build, with build's checks (config.Resolve).
+	rd := map[string]*string{}
+	var forceAmp bool
+	for _, k := range readKeys {
+		key := config.Lookup(k)
+		if key.Kind == config.Bool {
+			p.boolVar(&forceAmp, k, key.Usage)
+			continue
+		}
+		rd[k] = new(string)
+		p.stringVar(rd[k], k, key.Arg, key.Usage)
+	}
 	pos, err := p.parse(args)
 	if err != nil {
 		return err
 	}
+	sel := config.Set{}
+	for k, v := range rd {
+		if *v != "" {
+			if err := sel.SetFlag(k, *v); err != nil {
+				return err
+			}
+		}
+	}
+	if forceAmp {
+		if err := sel.SetFlag("force-amplitude", "true"); err != nil {
+			return err
+		}
+	}
+	for k, v := range map[string]string{"demo": "true", "quantity": "dvs"} {
+		if err := sel.SetFlag(k, v); err != nil {
+			return err
+		}
+	}
+	sp, err := config.Resolve(sel)
+	if err != nil {
+		return err
+	}
+	sp.Var = varName
 	if demo == (len(pos) == 1) || len(pos) > 1 {
 		return usagef("inspect", "give one FILE or --demo")
 	}
@@ -108,7 +146,7 @@ func runInspect(stdout, stderr io.Writer, args []string) error {
 	}
 	var info any
 	if demo {
-		info, err = inspectGrid(tomo.Demo())
+		info, err = inspectGrid(tomo.Demo(), unitOptions(sp))
 	} else {
 		var data []byte
 		var name string
@@ -120,13 +158,15 @@ func runInspect(stdout, stderr io.Writer, args []string) error {
 			info, err = inspectCoeffs(name, data)
 		} else {
 			var g *tomo.Grid
-			g, err = tomo.ReadBytes(name, data, tomo.ReadOptions{Var: varName})
+			g, err = tomo.ReadBytes(name, data, readOptions(sp))
 			if err != nil {
 				if ci, cerr := inspectCoeffs(name, data); cerr == nil {
 					info, err = ci, nil
+				} else {
+					err = withFlagHints(err)
 				}
 			} else {
-				info, err = inspectGrid(g)
+				info, err = inspectGrid(g, unitOptions(sp))
 			}
 		}
 	}
@@ -156,7 +196,8 @@ func looksLikeCoeffs(data []byte) bool {
 	return bytes.Contains(head, []byte("cmbflux-coefficients")) || bytes.Contains(head, []byte("cmbflux spherical-harmonic coefficients"))
 }
 
-func inspectGrid(g *tomo.Grid) (*gridInfo, error) {
+// inspectGrid describes g, its deepest layer converted to dlnVs with uo.
+func inspectGrid(g *tomo.Grid, uo tomo.UnitOptions) (*gridInfo, error) {
 	in := &gridInfo{File: g.Source.Path, Kind: "tomography grid", Format: g.Source.Format, SHA256: g.Source.SHA256, Title: g.Title,
 		Variable: g.Name, UnitsInFile: g.Units, Registration: g.Reg.String(), NLon: g.NLon(), NLat: g.NLat(),
 		LonRange: []float64{g.Lon[0], g.Lon[len(g.Lon)-1]}, LatRange: []float64{g.Lat[0], g.Lat[len(g.Lat)-1]},
@@ -167,25 +208,39 @@ func inspectGrid(g *tomo.Grid) (*gridInfo, error) {
 			in.Missing++
 		}
 	}
-	l, err := tomo.SelectLayer(g, tomo.LayerOptions{})
+	l, err := tomo.SelectLayer(g, tomo.LayerOptions{Units: uo})
 	if err != nil {
 		// Not a velocity anomaly (e.g. a flux grid written by cmbflux): the
 		// geometry is still worth reporting.
 		in.Kind = "grid (not usable as a tomography model)"
 		in.UnitsUsed = "none"
-		in.UnitsReason = err.Error()
+		in.UnitsReason = flagHint(err.Error())
 		in.ResolveReason = "not computed"
 		return in, nil
 	}
 	if l.Units != nil {
 		in.UnitsUsed, in.UnitsGuessed, in.UnitsReason = l.Units.From, l.Units.Guessed, l.Units.Reason
-		in.DlnVsMinPct, in.DlnVsMaxPct, in.DlnVsMeanPct = 100*l.Units.Min, 100*l.Units.Max, 100*l.Units.Mean
-		in.Warnings = append(in.Warnings, l.Units.Warnings...)
+		for _, w := range l.Units.Warnings {
+			in.Warnings = append(in.Warnings, flagHint(w))
+		}
 	}
+	// The layer's own range and mean: Units.Min and Units.Max span every
+	// depth level of the grid.
+	in.DlnVsMinPct, in.DlnVsMaxPct, in.DlnVsMeanPct = 100*l.Min, 100*l.Max, 100*l.Mean
 	in.Coverage = l.Coverage()
 	d := tomo.SafeDegree(l)
 	in.ResolvedLMax, in.ResolveReason = d.Lmax, d.Reason
 	return in, nil
+}
+
+// fixed3 formats x with 3 decimals, without the sign of a value that
+// rounds to zero ("0.000", never "-0.000").
+func fixed3(x float64) string {
+	s := fmt.Sprintf("%.3f", x)
+	if s == "-0.000" {
+		return "0.000"
+	}
+	return s
 }
 
 func nonNil(s []string) []string {
@@ -219,7 +274,7 @@ func printGridInfo(w io.Writer, in *gridInfo) {
 		fmt.Fprintf(w, "  depths        one layer (no depth axis)\n")
 	}
 	if in.UnitsUsed != "none" {
-		fmt.Fprintf(w, "  dlnVs         %.3f to %.3f %%, area-weighted mean %.3f %%\n", in.DlnVsMinPct, in.DlnVsMaxPct, in.DlnVsMeanPct)
+		fmt.Fprintf(w, "  dlnVs         %s to %s %%, area-weighted mean %s %% (deepest layer)\n", fixed3(in.DlnVsMinPct), fixed3(in.DlnVsMaxPct), fixed3(in.DlnVsMeanPct))
 	}
 	fmt.Fprintf(w, "  missing       %d of %d values\n", in.Missing, in.Points)
 	if in.UnitsUsed != "none" {

@@ -9,10 +9,11 @@ import (
 )
 
 // FuzzParseSpecs feeds the small parsers of the command line (--taper,
-// --grid, --only) arbitrary text: they must return an error or a valid
+// --grid, --only, and the reading options --vref, --missing, --units,
+// --vertical, --lon-name through config.Resolve) arbitrary text: they must return an error or a valid
 // value, never panic.
 func FuzzParseSpecs(f *testing.F) {
-	for _, s := range []string{"none", "cos:8:12", "gauss:10", "gauss:0", "cos:12:8", "lonlat:1", "gauss:40", "equiangular:64", "lonlat:7", "3", "0,4,9", "2-5", "5-2", "-1", "1,,2"} {
+	for _, s := range []string{"none", "cos:8:12", "gauss:10", "gauss:0", "cos:12:8", "lonlat:1", "gauss:40", "equiangular:64", "lonlat:7", "3", "0,4,9", "2-5", "5-2", "-1", "1,,2", "-999,99999", "mean", "7.26", "km/s", "radius", ",", "NaN"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
@@ -33,6 +34,32 @@ func FuzzParseSpecs(f *testing.F) {
 				t.Fatalf("grid %q: %d points", s, g.Len())
 			} else if err != nil && !errors.Is(err, config.ErrBadConfig) {
 				t.Fatalf("grid %q: error without ErrBadConfig: %v", s, err)
+			}
+		}
+		for _, key := range []string{"vref", "missing", "units", "vertical", "lon-name"} {
+			set := config.Set{}
+			err := set.SetFlag(key, s)
+			if err == nil {
+				if err = set.SetFlag("demo", "true"); err != nil {
+					t.Fatal(err)
+				}
+				if err = set.SetFlag("quantity", "dvs"); err != nil {
+					t.Fatal(err)
+				}
+				var sp *config.Spec
+				if sp, err = config.Resolve(set); err == nil {
+					if sp.VRef < 0 || sp.VRef >= 20 || (key == "missing" && len(sp.Missing) == 0) {
+						t.Fatalf("--%s %q: vref %g, missing %v", key, s, sp.VRef, sp.Missing)
+					}
+					for _, m := range sp.Missing {
+						if m != m {
+							t.Fatalf("--missing %q gave NaN", s)
+						}
+					}
+				}
+			}
+			if err != nil && !errors.Is(err, config.ErrBadConfig) {
+				t.Fatalf("--%s %q: error without ErrBadConfig: %v", key, s, err)
 			}
 		}
 		if idx, err := parseIndices(s, 12); err == nil {

@@ -58,8 +58,9 @@ type source struct {
 }
 
 func sourceKey(sp *config.Spec) string {
-	return fmt.Sprintf("in=%q demo=%v var=%q depth=%v:%g range=%v:%g:%g", sp.Input, sp.Demo, sp.Var,
-		sp.HasDepth, sp.Depth, sp.HasRange, sp.DepthMin, sp.DepthMax)
+	return fmt.Sprintf("in=%q demo=%v var=%q depth=%v:%g range=%v:%g:%g read=%q/%q/%q/%q/%v units=%q vref=%g/%v force=%v", sp.Input, sp.Demo, sp.Var,
+		sp.HasDepth, sp.Depth, sp.HasRange, sp.DepthMin, sp.DepthMax,
+		sp.LonName, sp.LatName, sp.DepthName, sp.Vertical, sp.Missing, sp.Units, sp.VRef, sp.VRefMean, sp.ForceAmplitude)
 }
 
 func (c *cache) source(sp *config.Spec) (*source, error) {
@@ -69,7 +70,7 @@ func (c *cache) source(sp *config.Spec) (*source, error) {
 		if sp.Demo {
 			g, err = demoGrid()
 		} else {
-			opts := tomo.ReadOptions{Var: sp.Var}
+			opts := readOptions(sp)
 			if sp.Input == "-" {
 				g, err = tomo.Read("<stdin>", stdin, opts)
 			} else {
@@ -77,9 +78,9 @@ func (c *cache) source(sp *config.Spec) (*source, error) {
 			}
 		}
 		if err != nil {
-			return nil, err
+			return nil, withFlagHints(err)
 		}
-		lo := tomo.LayerOptions{}
+		lo := tomo.LayerOptions{Units: unitOptions(sp)}
 		switch {
 		case sp.HasRange:
 			lo.Top, lo.Bottom = sp.DepthMin, sp.DepthMax
@@ -88,7 +89,7 @@ func (c *cache) source(sp *config.Spec) (*source, error) {
 		}
 		l, err := tomo.SelectLayer(g, lo)
 		if err != nil {
-			return nil, wrapInput(g.Source.Path, err)
+			return nil, withFlagHints(wrapInput(g.Source.Path, err))
 		}
 		s := &source{layer: l, safe: tomo.SafeDegree(l), name: g.Source.Path, sha256: g.Source.SHA256, format: g.Source.Format}
 		if sp.Demo {
@@ -363,7 +364,7 @@ func warnings(sp *config.Spec, src *source, pt *pattern, f *field, s *Summary) [
 		w = append(w, fmt.Sprintf("temperature gradient: dtdr is -q/k_core with k_core = %g W/m/K, in K/km, negative where heat leaves the core; check the sign and units your code expects", sp.CoreConductivity))
 	}
 	for _, lw := range src.layer.Warnings {
-		w = append(w, "input: "+src.name+": "+lw)
+		w = append(w, "input: "+src.name+": "+flagHint(lw))
 	}
 	for _, n := range pt.notes {
 		w = append(w, "input: "+src.name+": "+n)

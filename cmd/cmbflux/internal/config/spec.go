@@ -20,6 +20,9 @@ const CMBArea = 4 * math.Pi * CMBRadius * CMBRadius
 // Formats lists the accepted output formats.
 var Formats = []string{"txt", "json", "csv", "nc", "geojson", "png", "svg", "html"}
 
+// Units lists the accepted units of input values (--units).
+var Units = []string{"percent", "fraction", "km/s", "m/s"}
+
 // Quantities lists the accepted output quantities.
 var Quantities = []string{"flux", "anomaly", "relative", "superadiabatic", "dtdr", "dvs"}
 
@@ -28,6 +31,17 @@ type Spec struct {
 	Input string // path ("-" for standard input); "" with Demo
 	Demo  bool
 	Var   string
+
+	// Reading options (tomo.ReadOptions, tomo.UnitOptions).
+	Units          string  // percent, fraction, km/s, m/s; "" guesses
+	VRef           float64 // km/s; 0 when not given
+	VRefMean       bool    // v_ref is each depth's mean velocity
+	ForceAmplitude bool    // accept |dlnVs| above the plausible range
+	Missing        []float64
+	LonName        string
+	LatName        string
+	DepthName      string
+	Vertical       string // depth or radius; "" decides from the name
 
 	Depth              float64 // km; used when HasDepth
 	HasDepth           bool
@@ -119,6 +133,61 @@ func Resolve(s Set) (*Spec, error) {
 	}
 	if v, ok := s["var"]; ok {
 		sp.Var = v.Raw
+	}
+	if v, ok := s["units"]; ok {
+		u := strings.TrimSpace(v.Raw)
+		if !slices.Contains(Units, u) {
+			return nil, bad("units", "%q is not one of %s", v.Raw, strings.Join(Units, ", "))
+		}
+		sp.Units = u
+	}
+	if v, ok := s["vref"]; ok {
+		if r := strings.TrimSpace(v.Raw); r == "mean" {
+			sp.VRefMean = true
+		} else {
+			x, err := strconv.ParseFloat(r, 64)
+			// PREM's Vs just above the core-mantle boundary is 7.26 km/s
+			// (Dziewonski & Anderson 1981); 20 km/s bounds any mantle
+			// velocity and catches m/s given as km/s.
+			if err != nil || !(x > 0 && x < 20) {
+				return nil, bad("vref", "%q is not a shear velocity in km/s (e.g. 7.26, PREM at the base of the mantle) or mean", v.Raw)
+			}
+			sp.VRef = x
+		}
+	}
+	sp.ForceAmplitude = b("force-amplitude")
+	if v, ok := s["missing"]; ok {
+		for _, p := range strings.Split(v.Raw, ",") {
+			p = strings.TrimSpace(p)
+			if p == "" {
+				continue
+			}
+			x, err := strconv.ParseFloat(p, 64)
+			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+				return nil, bad("missing", "%q is not a number (NaN is always missing)", p)
+			}
+			sp.Missing = append(sp.Missing, x)
+		}
+		if len(sp.Missing) == 0 {
+			return nil, bad("missing", "no values given; want X[,Y...], e.g. -999,99999")
+		}
+	}
+	for _, n := range []struct {
+		key string
+		dst *string
+	}{{"lon-name", &sp.LonName}, {"lat-name", &sp.LatName}, {"depth-name", &sp.DepthName}} {
+		if v, ok := s[n.key]; ok {
+			if strings.TrimSpace(v.Raw) == "" {
+				return nil, bad(n.key, "empty name")
+			}
+			*n.dst = strings.TrimSpace(v.Raw)
+		}
+	}
+	if v, ok := s["vertical"]; ok {
+		if v.Raw != "depth" && v.Raw != "radius" {
+			return nil, bad("vertical", "%q is not depth or radius", v.Raw)
+		}
+		sp.Vertical = v.Raw
 	}
 	if d, ok := f("depth"); ok {
 		if has("depth-range") {

@@ -78,7 +78,18 @@ func (g *Grid) MaxDegree() int {
 	case DriscollHealy:
 		return min(g.NLat()/2-1, lon)
 	}
-	return min(g.NLat()-1, lon)
+	n, pole := 0, false
+	for _, c := range g.Colat {
+		if c < 1e-12 || c > math.Pi-1e-12 {
+			pole = true
+		} else {
+			n++
+		}
+	}
+	if pole {
+		n++
+	}
+	return min(n-1, lon)
 }
 
 // NewGaussLegendre returns the Gauss-Legendre grid with nlat rings at the

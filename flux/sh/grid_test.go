@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/integrate/quad"
+	"gonum.org/v1/gonum/mat"
 )
 
 // TestGaussLegendreNodes compares nodes and weights with gonum's
@@ -100,6 +101,7 @@ func TestAreaWeights(t *testing.T) {
 }
 
 // TestMaxDegree checks the sampling limits documented on Grid.MaxDegree.
+// For rings the limit is checked by rank (TestMaxDegreeRank).
 func TestMaxDegree(t *testing.T) {
 	for _, tc := range []struct {
 		g    *Grid
@@ -109,6 +111,10 @@ func TestMaxDegree(t *testing.T) {
 		{NewDriscollHealy(130), 64},
 		{NewLonLat(90, 180, CellRegistered), 89},
 		{NewLonLat(181, 360, NodeRegistered), 179},
+		// Both poles: 17 rings away from the poles plus one.
+		{NewLonLat(19, 72, NodeRegistered), 17},
+		{NewRings([]float64{0, 0.5, 1, 1.5}, 72, 0), 3},
+		{NewRings([]float64{0.5, 1, 1.5}, 72, 0), 2},
 	} {
 		if got := tc.g.MaxDegree(); got != tc.want {
 			t.Errorf("%v %dx%d: MaxDegree %d, want %d", tc.g.Kind, tc.g.NLat(), tc.g.NLon, got, tc.want)
@@ -123,4 +129,51 @@ func (s byXDesc) Less(i, j int) bool { return s.x[i] > s.x[j] }
 func (s byXDesc) Swap(i, j int) {
 	s.x[i], s.x[j] = s.x[j], s.x[i]
 	s.w[i], s.w[j] = s.w[j], s.w[i]
+}
+
+// TestMaxDegreeRank checks Grid.MaxDegree of ring grids by linear algebra:
+// on whole rings the least-squares problem splits by order (fit.go), and
+// the order-m block, rings x degrees m..L with entries Pbar_lm(cos theta_i),
+// must have full column rank for every m <= L. Pole rings vanish for m > 0,
+// so with both poles present order 1 sees two rings fewer than order 0.
+// The rank is read from the singular values (gonum/mat SVD; relative
+// threshold 1e-10, common practice): full at MaxDegree, deficient above.
+func TestMaxDegreeRank(t *testing.T) {
+	fullRank := func(g *Grid, L int) bool {
+		for m := 0; m <= L; m++ {
+			a := mat.NewDense(g.NLat(), L-m+1, nil)
+			for i, th := range g.Colat {
+				p := Legendre(nil, L, th, Canonical)
+				for l := m; l <= L; l++ {
+					a.Set(i, l-m, p[Index(l, m)])
+				}
+			}
+			if g.NLat() < L-m+1 {
+				return false
+			}
+			var svd mat.SVD
+			if !svd.Factorize(a, mat.SVDNone) {
+				t.Fatal("SVD failed")
+			}
+			s := svd.Values(nil)
+			if s[len(s)-1] <= 1e-10*s[0] {
+				return false
+			}
+		}
+		return true
+	}
+	for _, g := range []*Grid{
+		NewLonLat(19, 72, NodeRegistered),
+		NewLonLat(18, 72, CellRegistered),
+		NewRings([]float64{0, 0.4, 0.9, 1.3, 2.0}, 72, 0),
+		NewRings([]float64{0.4, 0.9, 1.3, 2.0, math.Pi}, 72, 0),
+	} {
+		L := g.MaxDegree()
+		if !fullRank(g, L) {
+			t.Errorf("%d rings from %v to %v: MaxDegree %d, but an order block is rank deficient there", g.NLat(), g.Colat[0], g.Colat[g.NLat()-1], L)
+		}
+		if fullRank(g, L+1) {
+			t.Errorf("%d rings from %v to %v: MaxDegree %d, but degree %d is still determined", g.NLat(), g.Colat[0], g.Colat[g.NLat()-1], L, L+1)
+		}
+	}
 }

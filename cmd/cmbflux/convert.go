@@ -167,12 +167,7 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 			}
 			// The grid written is this one, not the one of the build that
 			// made the coefficients.
-			params := map[string]string{}
-			for k, v := range m.Params {
-				params[k] = v
-			}
-			params["grid"] = grid
-			m.Params = params
+			overrideParams(&m, map[string]string{"grid": grid})
 			if err := export.WriteGrid(&b, format, eg, &m); err != nil {
 				return err
 			}
@@ -182,6 +177,12 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 			}
 			if err := conv.CheckDegree(can.LMax); err != nil {
 				return usagef("convert", "%v", err)
+			}
+			// The convention parameters of the build that made the table
+			// give way to the new ones, so that the header does not
+			// contradict itself.
+			if _, ok := m.Params["norm"]; ok {
+				overrideParams(&m, map[string]string{"norm": n.String(), "condon-shortley": fmt.Sprint(cs), "form": form, "no-degree0": fmt.Sprint(noDeg0)})
 			}
 			if err := export.WriteCoeffs(&b, format, can, &m, &export.CoeffOptions{Conv: conv, Complex: form == "complex", OmitDegree0: noDeg0}); err != nil {
 				return err
@@ -200,6 +201,19 @@ func runConvert(stdout, stderr io.Writer, args []string) error {
 		return err
 	}
 	return outdir.WriteFile(out, body)
+}
+
+// overrideParams replaces parameters of m's header with kv, in a copy of
+// its map (the map may be shared with the table read).
+func overrideParams(m *export.Meta, kv map[string]string) {
+	p := make(map[string]string, len(m.Params)+len(kv))
+	for k, v := range m.Params {
+		p[k] = v
+	}
+	for k, v := range kv {
+		p[k] = v
+	}
+	m.Params = p
 }
 
 // fitGrid expands the values of a single-layer grid (the deepest level of a

@@ -111,11 +111,11 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 	if err := sweepFigure("demo sweep", "qstar", pts, sums).WritePNG(&sb); err != nil {
 		return err
 	}
-	sweepFig := htmlreport.Figure{Caption: "Sweep: flux minimum and area fractions against q*, one curve per lmax.", MIME: "image/png", Data: sb.Bytes()}
+	sweepFig := htmlreport.Figure{Caption: "Sweep: achieved q* (dashed: equal to the requested q*), flux minimum and area fractions against q*, one curve per lmax.", MIME: "image/png", Data: sb.Bytes()}
 	rows := [][]string{}
 	for i, pt := range pts {
 		s := sums[i]
-		rows = append(rows, []string{pt.Name, pt.Set["qstar"].Raw, pt.Set["lmax"].Raw, fmt.Sprintf("%.1f", *s.QMin), fmt.Sprintf("%.1f", *s.QMax),
+		rows = append(rows, []string{pt.Name, pt.Set["qstar"].Raw, strconv.FormatFloat(s.QStar, 'g', 6, 64), pt.Set["lmax"].Raw, fmt.Sprintf("%.1f", *s.QMin), fmt.Sprintf("%.1f", *s.QMax),
 			fmt.Sprintf("%.1f", 100*s.AreaNegative), fmt.Sprintf("%.1f", 100**s.AreaSubadiabatic)})
 	}
 	var files []htmlreport.File
@@ -141,12 +141,13 @@ func runDemo(stdout, stderr io.Writer, args []string) error {
 		Warnings:    prefixed("bc: ", sum.Warnings),
 		Figures:     figs,
 		Parameters:  htmlreport.KeyValues("Parameters of bc/", "parameter", "value", pp...),
+		Diagnostics: htmlreport.KeyValues("Diagnostics of bc/", "diagnostic", "value", diagnosticRows(sum)...),
 		Conventions: htmlreport.KeyValues("Convention of bc/coefficients.txt", "item", "value", [2]string{"normalization", sum.Normalization}, [2]string{"Condon-Shortley phase", "excluded"}, [2]string{"form", sum.Form}, [2]string{"units", sum.Units}, [2]string{"sign", sum.Sign}),
 		Sections: []htmlreport.Section{{
 			Heading: "Sweep of q* and lmax",
 			Text:    []string{"Every run of sweep/ (see sweep/summary.csv): the flux extremes and the fractions of the CMB where the flux is negative or below the adiabatic 60 mW/m^2."},
 			Figures: []htmlreport.Figure{sweepFig},
-			Tables: []htmlreport.Table{{Caption: "Runs", Header: []string{"run", "q*", "lmax", "q_min (mW/m^2)", "q_max (mW/m^2)", "negative (%)", "sub-adiabatic (%)"},
+			Tables: []htmlreport.Table{{Caption: "Runs", Header: []string{"run", "q* requested", "q* achieved", "lmax", "q_min (mW/m^2)", "q_max (mW/m^2)", "negative (%)", "sub-adiabatic (%)"},
 				Rows: rows}},
 		}},
 		Files:     files,
@@ -183,7 +184,8 @@ func prefixed(p string, s []string) []string {
 	return out
 }
 
-// sweepFigure draws q_min and the negative and sub-adiabatic area
+// sweepFigure draws the achieved q* (beside the line y = x: it should
+// equal the requested q*), q_min and the negative and sub-adiabatic area
 // fractions against the varied parameter x, one curve per combination of the
 // other varied parameters. It returns nil when x is not varied or not
 // numeric.
@@ -212,7 +214,7 @@ func sweepFigure(title, x string, pts []config.Point, sums []*Summary) *figure.S
 			order = append(order, label)
 		}
 	}
-	panels := []figure.SweepPanel{{YLabel: "q_min (mW/m²)"}, {YLabel: "negative area fraction", Fraction: true}}
+	panels := []figure.SweepPanel{{YLabel: "achieved q*", Identity: x == "qstar"}, {YLabel: "q_min (mW/m²)"}, {YLabel: "negative area fraction", Fraction: true}}
 	hasAd := len(sums) > 0 && sums[0].AreaSubadiabatic != nil
 	if hasAd {
 		panels = append(panels, figure.SweepPanel{YLabel: "sub-adiabatic area fraction", Fraction: true})
@@ -246,11 +248,11 @@ func sweepFigure(title, x string, pts []config.Point, sums []*Summary) *figure.S
 			l = x
 		}
 		k := series[l]
-		ys := []float64{*s.QMin, s.AreaNegative}
+		ys := []float64{s.QStar, *s.QMin, s.AreaNegative}
 		if hasAd {
 			ys = append(ys, math.NaN())
 			if s.AreaSubadiabatic != nil {
-				ys[2] = *s.AreaSubadiabatic
+				ys[3] = *s.AreaSubadiabatic
 			}
 		}
 		for p := range panels {

@@ -39,6 +39,9 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 	for k, v := range specParams(sp) {
 		m.Params[k] = v
 	}
+	if u := readUnits(sp, src); u != "" {
+		m.Params["units"] = u
+	}
 	// The warnings travel with every data file, by class, so that a table
 	// copied on its own still says what is wrong with it.
 	if len(s.Warnings) > 0 {
@@ -238,7 +241,95 @@ func specParams(sp *config.Spec) map[string]string {
 	if sp.CoreConductivity != 0 {
 		p["core-conductivity"] = fmt.Sprintf("%g W/m/K", sp.CoreConductivity)
 	}
+	p["mode"] = "ratio"
+	if sp.Physical {
+		p["mode"] = "physical"
+	} else if sp.Quantity != "dvs" {
+		p["qstar-on"] = "continuous"
+		if sp.QStarOnGrid {
+			p["qstar-on"] = "grid"
+		}
+	}
+	p["norm"] = sp.Norm
+	p["condon-shortley"] = fmt.Sprint(sp.CondonShortley)
+	p["form"] = sp.Form
+	p["no-degree0"] = fmt.Sprint(sp.NoDegree0)
+	if sp.ForceLMax {
+		p["force-lmax"] = "true"
+	}
+	// How the input was read, where it was given (the manifest adds the
+	// units the reader decided on).
+	if sp.Units != "" {
+		p["units"] = sp.Units
+	}
+	switch {
+	case sp.VRefMean:
+		p["vref"] = "mean"
+	case sp.VRef != 0:
+		p["vref"] = fmt.Sprintf("%g km/s", sp.VRef)
+	}
+	if sp.ForceAmplitude {
+		p["force-amplitude"] = "true"
+	}
+	if len(sp.Missing) > 0 {
+		ms := make([]string, len(sp.Missing))
+		for i, v := range sp.Missing {
+			ms[i] = fmt.Sprint(v)
+		}
+		p["missing"] = strings.Join(ms, ",")
+	}
+	for k, v := range map[string]string{"lon-name": sp.LonName, "lat-name": sp.LatName, "depth-name": sp.DepthName, "vertical": sp.Vertical} {
+		if v != "" {
+			p[k] = v
+		}
+	}
 	return p
+}
+
+// manifestParams returns every parameter of a build for its manifest:
+// the resolved ones of specParams (defaults included), the values given
+// in set as written (so that a rebuild from them is exact; the amplitude
+// given as --heatflow or --adiabatic-heatflow replaces the derived qmean
+// or qad), the units the input was read in, the output formats and the
+// layer used. Its keys other than mode and layer are build parameters.
+func manifestParams(sp *config.Spec, set config.Set, src *source) map[string]string {
+	p := specParams(sp)
+	for k, v := range set {
+		if k != "out" {
+			p[k] = v.Raw
+		}
+	}
+	if _, ok := set["heatflow"]; ok {
+		delete(p, "qmean")
+	}
+	if _, ok := set["adiabatic-heatflow"]; ok {
+		delete(p, "qad")
+	}
+	if sp.Demo {
+		delete(p, "input")
+		p["demo"] = "true"
+	}
+	p["formats"] = strings.Join(sp.Formats, ",")
+	if src != nil && src.layer != nil {
+		p["layer"] = src.layer.Description
+	}
+	if u := readUnits(sp, src); u != "" {
+		p["units"] = u
+	}
+	return p
+}
+
+// readUnits returns the units the input was read in: as given, or as the
+// reader decided from the file (giving them again reads the same); "" for
+// a source without a unit conversion (a consensus of compare).
+func readUnits(sp *config.Spec, src *source) string {
+	if sp.Units != "" {
+		return sp.Units
+	}
+	if src != nil && src.layer != nil && src.layer.Units != nil {
+		return src.layer.Units.From
+	}
+	return ""
 }
 
 // plotGrid samples canonical coefficients on a 1-degree node grid for maps.

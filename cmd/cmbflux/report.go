@@ -44,21 +44,7 @@ func buildReport(sp *config.Spec, pt *pattern, s *Summary, out *sh.Coeffs, f *fi
 		{"sign", s.Sign},
 		{"longitude origin", "Greenwich, eastward"},
 	}
-	diag := [][2]string{
-		{"q* (measured)", fmtF(s.QStar)},
-		{"q* definition", s.QStarDefinition},
-		{"rms ratio", fmtF(s.RMSRatio)},
-		{"area with negative flux", fmt.Sprintf("%.2f %%", 100*s.AreaNegative)},
-		{"q_max at (lon, lat)", fmt.Sprintf("%g, %g", s.QMaxLonLat[0], s.QMaxLonLat[1])},
-		{"q_min at (lon, lat)", fmt.Sprintf("%g, %g", s.QMinLonLat[0], s.QMinLonLat[1])},
-	}
-	if s.QMean != nil {
-		diag = append(diag, [2]string{"q_mean", fmt.Sprintf("%.4g mW/m^2 (%.4g TW)", *s.QMean, *s.HeatFlowTW)},
-			[2]string{"q_max", fmt.Sprintf("%.4g mW/m^2", *s.QMax)}, [2]string{"q_min", fmt.Sprintf("%.4g mW/m^2", *s.QMin)})
-	}
-	if s.AreaSubadiabatic != nil {
-		diag = append(diag, [2]string{"area with sub-adiabatic flux", fmt.Sprintf("%.2f %%", 100**s.AreaSubadiabatic)})
-	}
+	diag := diagnosticRows(s)
 	var rf []htmlreport.File
 	for _, n := range files {
 		f, err := htmlreport.HashFile(filepath.Join(dir, n), n)
@@ -86,4 +72,24 @@ func buildReport(sp *config.Spec, pt *pattern, s *Summary, out *sh.Coeffs, f *fi
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// diagnosticRows are the rows of a build's diagnostics table in a report.
+func diagnosticRows(s *Summary) [][2]string {
+	diag := [][2]string{
+		{"q* (measured)", fmtF(s.QStar)},
+		{"q* definition", s.QStarDefinition},
+		{"rms ratio", fmtF(s.RMSRatio)},
+		{"area with negative flux", fmt.Sprintf("%.2f %%", 100*s.AreaNegative)},
+		{"q_max at (lon, lat)", fmt.Sprintf("%g, %g", s.QMaxLonLat[0], s.QMaxLonLat[1])},
+		{"q_min at (lon, lat)", fmt.Sprintf("%g, %g", s.QMinLonLat[0], s.QMinLonLat[1])},
+	}
+	if s.QMean != nil {
+		diag = append(diag, [2]string{"q_mean", fmt.Sprintf("%.4g mW/m^2 (%.4g TW)", *s.QMean, *s.HeatFlowTW)},
+			[2]string{"q_max", fmt.Sprintf("%.4g mW/m^2", *s.QMax)}, [2]string{"q_min", fmt.Sprintf("%.4g mW/m^2", *s.QMin)})
+	}
+	if s.AreaSubadiabatic != nil {
+		diag = append(diag, [2]string{"area with sub-adiabatic flux", fmt.Sprintf("%.2f %%", 100**s.AreaSubadiabatic)})
+	}
+	return diag
 }

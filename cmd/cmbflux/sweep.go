@@ -501,7 +501,7 @@ func sweepReport(out string, sw *config.Sweep, pts []config.Point, sums []*Summa
 	for _, a := range sw.Axes {
 		head = append(head, a.Key)
 	}
-	head = append(head, "q*", "q_min (mW/m^2)", "q_max (mW/m^2)", "negative (%)", "sub-adiabatic (%)", "warnings")
+	head = append(head, "q* achieved", "q_min (mW/m^2)", "q_max (mW/m^2)", "negative (%)", "sub-adiabatic (%)", "warnings")
 	var rows [][]string
 	warnRuns := map[string][]int{}
 	for i, p := range pts {

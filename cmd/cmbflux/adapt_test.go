@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -205,6 +206,56 @@ func TestDemoReportDiagnostics(t *testing.T) {
 	for _, want := range []string{"Diagnostics of bc/", "area with negative flux", "q* achieved"} {
 		if !strings.Contains(string(data), want) {
 			t.Errorf("d/report.html lacks %q", want)
+		}
+	}
+}
+
+// TestOutlinesSplitPatches: the demo's two slow provinces are antipodal by
+// design (tomo.Demo), so the outlines hold each sub-adiabatic and slow
+// region as two patches with their own centroids, about 180 degrees apart
+// (great-circle distance by the spherical law of cosines), whose areas add
+// up to the sub-adiabatic fraction of summary.json (the flux package's
+// contour areas, checked there against a ring quadrature) to within the
+// 1-degree drawing grid (2e-3 of the sphere, common practice).
+func TestOutlinesSplitPatches(t *testing.T) {
+	t.Chdir(t.TempDir())
+	mustCLI(t, "build", "--demo", "--qstar", "1", "--qmean", "80", "--qad", "60", "--formats", "geojson", "--out", "bc")
+	data, err := os.ReadFile("bc/outlines.geojson")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var fc struct {
+		Features []struct {
+			Properties map[string]any `json:"properties"`
+		} `json:"features"`
+	}
+	if err := json.Unmarshal(data, &fc); err != nil {
+		t.Fatal(err)
+	}
+	type patch struct{ area, lon, lat float64 }
+	byRegion := map[string][]patch{}
+	for _, f := range fc.Features {
+		p := f.Properties
+		r, _ := p["region"].(string)
+		a, _ := p["area_fraction"].(float64)
+		lon, _ := p["centroid_lon"].(float64)
+		lat, _ := p["centroid_lat"].(float64)
+		byRegion[r] = append(byRegion[r], patch{a, lon, lat})
+	}
+	s := loadSummary(t, "bc")
+	for _, r := range []string{"sub-adiabatic heat flux", "dVs below -1 %"} {
+		ps := byRegion[r]
+		if len(ps) != 2 {
+			t.Errorf("%s: %d patches, want 2", r, len(ps))
+			continue
+		}
+		d2r := math.Pi / 180
+		cosd := math.Sin(ps[0].lat*d2r)*math.Sin(ps[1].lat*d2r) + math.Cos(ps[0].lat*d2r)*math.Cos(ps[1].lat*d2r)*math.Cos((ps[0].lon-ps[1].lon)*d2r)
+		if d := math.Acos(math.Max(-1, math.Min(1, cosd))) / d2r; d < 150 {
+			t.Errorf("%s: centroids %v and %v are %.1f degrees apart, want the antipodal provinces", r, ps[0], ps[1], d)
+		}
+		if r == "sub-adiabatic heat flux" && math.Abs(ps[0].area+ps[1].area-*s.AreaSubadiabatic) > 2e-3 {
+			t.Errorf("patch areas %g + %g, summary %g", ps[0].area, ps[1].area, *s.AreaSubadiabatic)
 		}
 	}
 }

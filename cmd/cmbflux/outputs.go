@@ -81,7 +81,7 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 		case "png", "svg":
 			var b bytes.Buffer
 			mp := mapFigure(f.out, f, s)
-			mp.Outlines = mapOutlines(sp, pt, f)
+			mp.Outlines = mapOutlines(sp, pt, f, s)
 			if format == "png" {
 				err = mp.WritePNG(&b)
 			} else {
@@ -112,7 +112,11 @@ func writeOutputs(ctx context.Context, sp *config.Spec, src *source, pt *pattern
 			}
 		case "geojson":
 			var b bytes.Buffer
-			if err = export.WriteOutlines(&b, outlines(sp, pt, f), m); err == nil {
+			ol, warns := outlines(sp, pt, f)
+			for _, w := range warns {
+				addWarning(s, w)
+			}
+			if err = export.WriteOutlines(&b, ol, m); err == nil {
 				names = append(names, "outlines.geojson")
 				err = st.WriteFile("outlines.geojson", b.Bytes())
 			}
@@ -163,8 +167,10 @@ func outputGrid(sp *config.Spec, pt *pattern, f *field) *export.Grid {
 // outlines returns the regions where the flux is negative, where it is
 // sub-adiabatic, and where dVs is below -1 % (the outline of the slow
 // provinces, a common-practice level, Burke & Torsvik 2004), drawn on a
-// 1-degree grid.
-func outlines(sp *config.Spec, pt *pattern, f *field) []export.Outline {
+// 1-degree grid, one feature per connected patch (Split), each with its own
+// area and centroid. A region that cannot be drawn is left out with a
+// warning, returned.
+func outlines(sp *config.Spec, pt *pattern, f *field) ([]export.Outline, []string) {
 	g := sh.NewLonLat(181, 360, sh.NodeRegistered)
 	pc := pt.flux.Coeffs()
 	pc.C[0] = pt.mean * math.Sqrt(4*math.Pi)
@@ -173,29 +179,43 @@ func outlines(sp *config.Spec, pt *pattern, f *field) []export.Outline {
 	for i := range lat {
 		lat[i] = 90 - float64(i)
 	}
-	below := func(name string, level float64, vals []float64, props map[string]any) export.Outline {
+	var out []export.Outline
+	var warns []string
+	below := func(name string, level float64, vals []float64, props map[string]any) {
 		rings, err := contour.Below(contour.Field{Lon0: 0, NLon: 360, Lat: lat, Values: vals}, level)
 		if err != nil {
-			rings = nil
+			warns = append(warns, fmt.Sprintf("outlines: the region of %s could not be drawn (%v); it is missing from the outlines", name, err))
+			return
 		}
 		p := map[string]any{"region": name}
 		for k, v := range props {
 			p[k] = v
 		}
-		return export.Outline{Rings: rings, Props: p}
+		out = append(out, export.Outline{Rings: rings, Props: p, Split: true})
 	}
-	var out []export.Outline
 	if f.res != nil {
 		q, err := f.res.OnGrid(flux.HeatFlux, g)
-		if err == nil {
-			out = append(out, below("negative heat flux", 0, q, map[string]any{"level_mw_m2": 0}))
+		if err != nil {
+			warns = append(warns, fmt.Sprintf("outlines: the heat flux could not be sampled for its outlines (%v); the negative and sub-adiabatic regions are missing from the outlines", err))
+		} else {
+			below("negative heat flux", 0, q, map[string]any{"level_mw_m2": 0})
 			if sp.HasQAd {
-				out = append(out, below("sub-adiabatic heat flux", sp.QAd, q, map[string]any{"level_mw_m2": sp.QAd * 1e3}))
+				below("sub-adiabatic heat flux", sp.QAd, q, map[string]any{"level_mw_m2": sp.QAd * 1e3})
 			}
 		}
 	}
-	out = append(out, below("dVs below -1 %", -0.01, dvs, map[string]any{"level_percent": -1.0}))
-	return out
+	below("dVs below -1 %", -0.01, dvs, map[string]any{"level_percent": -1.0})
+	return out, warns
+}
+
+// addWarning adds w to the summary's warnings unless it is there already.
+func addWarning(s *Summary, w string) {
+	for _, x := range s.Warnings {
+		if x == w {
+			return
+		}
+	}
+	s.Warnings = append(s.Warnings, w)
 }
 
 // specParams returns the resolved parameters of a build, as written into
@@ -351,10 +371,15 @@ func mapFigure(c *sh.Coeffs, f *field, s *Summary) *figure.Map {
 }
 
 // mapOutlines draws the regions of negative flux (solid) and of
-// sub-adiabatic flux (dashed) over a map.
-func mapOutlines(sp *config.Spec, pt *pattern, f *field) []figure.Outline {
+// sub-adiabatic flux (dashed) over a map; a region that cannot be drawn is
+// warned about in s.
+func mapOutlines(sp *config.Spec, pt *pattern, f *field, s *Summary) []figure.Outline {
 	var out []figure.Outline
-	for _, o := range outlines(sp, pt, f) {
+	ol, warns := outlines(sp, pt, f)
+	for _, w := range warns {
+		addWarning(s, w)
+	}
+	for _, o := range ol {
 		name, _ := o.Props["region"].(string)
 		switch name {
 		case "negative heat flux":

@@ -20,7 +20,7 @@ func buildReport(sp *config.Spec, pt *pattern, s *Summary, out *sh.Coeffs, f *fi
 	var figs []htmlreport.Figure
 	var b bytes.Buffer
 	mp := mapFigure(out, f, s)
-	mp.Outlines = mapOutlines(sp, pt, f)
+	mp.Outlines = mapOutlines(sp, pt, f, s)
 	if err := mp.WritePNG(&b); err != nil {
 		return nil, err
 	}

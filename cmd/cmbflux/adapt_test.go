@@ -259,3 +259,13 @@ func TestOutlinesSplitPatches(t *testing.T) {
 		}
 	}
 }
+
+// TestFixed3NoNegativeZero: inspect's three-decimal numbers never read
+// "-0.000" (a value that rounds to zero has no sign); others keep theirs.
+func TestFixed3NoNegativeZero(t *testing.T) {
+	for x, want := range map[float64]string{-0.0001: "0.000", -0.0004999: "0.000", -0.0006: "-0.001", 0.0004: "0.000", -2.6: "-2.600", math.Copysign(0, -1): "0.000"} {
+		if got := fixed3(x); got != want {
+			t.Errorf("fixed3(%g) = %q, want %q", x, got, want)
+		}
+	}
+}

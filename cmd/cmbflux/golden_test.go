@@ -160,7 +160,7 @@ func TestGoldenCommands(t *testing.T) {
 		{name: "inspect-demo", args: []string{"inspect", "--demo"}},
 		{name: "inspect-coeffs", args: []string{"inspect", "bc/coefficients.txt"}, setup: buildDemo},
 		{name: "inspect-coeffs-json", args: []string{"inspect", "bc/coefficients.txt", "--json"}, setup: buildDemo},
-		{name: "inspect-grid", args: []string{"inspect", "bc/field.nc"}, setup: buildDemo},
+		{name: "inspect-grid", args: []string{"inspect", "bc/field.nc"}, code: 2, setup: buildDemo},
 		{name: "inspect-folder", args: []string{"inspect", "bc"}, setup: buildDemo},
 		{name: "inspect-folder-damaged", args: []string{"inspect", "bc"}, code: 1,
 			setup: func(t *testing.T) { buildDemo(t); writeFile(t, "bc/coefficients.txt", "0 0 1 0\n") }},

@@ -21,7 +21,9 @@ const inspectHelp = `Usage: cmbflux inspect FILE [--var NAME] [reading flags] [-
 
 For an output folder of cmbflux (one with manifest.yaml), checks every file
 against the manifest's sizes and sha256 sums and exits with status 1 if one
-differs.
+differs. A grid that cannot be read as a tomography model (such as a flux
+grid written by build) is described as far as possible, and inspect exits
+with status 2 as build would.
 
 Says what a file is. For a tomography grid (text, CSV, netCDF): the grid's
 geometry and registration, longitude and latitude ranges and steps, depth
@@ -178,14 +180,21 @@ func runInspect(stdout, stderr io.Writer, args []string) error {
 		if err != nil {
 			return err
 		}
-		_, err = stdout.Write(b)
-		return err
+		if _, err = stdout.Write(b); err != nil {
+			return err
+		}
+	} else {
+		switch v := info.(type) {
+		case *gridInfo:
+			printGridInfo(stdout, v)
+		case *coeffInfo:
+			printCoeffInfo(stdout, v)
+		}
 	}
-	switch v := info.(type) {
-	case *gridInfo:
-		printGridInfo(stdout, v)
-	case *coeffInfo:
-		printCoeffInfo(stdout, v)
+	// A grid that build would refuse is described as far as it can be,
+	// and exits with status 2 like build.
+	if gi, ok := info.(*gridInfo); ok && gi.UnitsUsed == "none" {
+		return inputErrorf("not usable as a tomography model: %s", gi.UnitsReason)
 	}
 	return nil
 }

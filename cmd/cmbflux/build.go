@@ -14,7 +14,7 @@ import (
 	"cmbflux/cmd/cmbflux/internal/outdir"
 )
 
-const buildHelp = `Usage: cmbflux build (--input FILE | --demo) --qstar X (--qmean MW_M2 | --heatflow TW) --out DIR [flags]
+const buildHelp = `Usage: cmbflux build (--input FILE | --demo | --pattern TERMS) --qstar X (--qmean MW_M2 | --heatflow TW) --out DIR [flags]
        cmbflux build --config build.yaml [flags]
 
 Writes one heat-flux boundary condition at the core-mantle boundary: the
@@ -24,6 +24,14 @@ truncated at --lmax, tapered, and scaled so that the total flux has the
 heterogeneity q* = (q_max - q_min) / q_mean and the mean --qmean. In
 physical mode (--physical) the amplitude follows from d ln Vs / dT, the
 conductivity and the boundary-layer thickness instead.
+
+--pattern TERMS replaces the tomography by an idealised pattern, a sum of
+harmonics (e.g. --pattern 2:2:cos or 2:2:cos:1,1:0:cos:0.3) that goes
+through the same amplitude control, diagnostics and outputs. --amplitude X
+with --measure M sets another measure of the heterogeneity to X instead of
+q*: qstar-superadiabatic (q_max - q_min)/(q_mean - q_ad), rms
+rms(q - q_mean)/q_mean over the sphere, or max-deviation
+max|q - q_mean|/q_mean; summary.json names the measure (amplitude_set_by).
 
 DIR receives coefficients.txt (columns l m cos sin under a # header),
 summary.json (q*, extrema and where they are, the area fractions with
@@ -170,6 +178,9 @@ func printSummary(w io.Writer, out string, s *Summary) {
 	row("convention", "%s, %s form", s.Convention, s.Form)
 	if s.QMean != nil {
 		row("q*", "%.4g (peak to peak over mean of the total flux, %s)", s.QStar, strings.TrimPrefix(s.QStarDefinition, "(q_max - q_min) / q_mean of the total heat flux, "))
+		if s.AmplitudeMeasure != "" && s.AmplitudeMeasure != "qstar" {
+			row("set by", "%s (--measure %s)", s.AmplitudeSetBy, s.AmplitudeMeasure)
+		}
 		row("q_mean", "%.4g mW/m^2 (%.4g TW)", *s.QMean, *s.HeatFlowTW)
 		row("q_max", "%.4g mW/m^2 at lon %.1f, lat %.1f", *s.QMax, s.QMaxLonLat[0], s.QMaxLonLat[1])
 		row("q_min", "%.4g mW/m^2 at lon %.1f, lat %.1f", *s.QMin, s.QMinLonLat[0], s.QMinLonLat[1])

@@ -76,7 +76,7 @@ Two files compared at a depth of 2800 km:
 
 // compareOnlyConsensus are build parameters that only the consensus
 // boundary condition uses.
-var compareOnlyConsensus = []string{"qstar", "qmean", "heatflow", "qad", "adiabatic-heatflow", "physical", "dlnvs-dt",
+var compareOnlyConsensus = []string{"qstar", "measure", "amplitude", "qmean", "heatflow", "qad", "adiabatic-heatflow", "physical", "dlnvs-dt",
 	"conductivity", "thickness", "core-conductivity", "quantity", "norm", "condon-shortley", "form", "grid", "formats",
 	"taper", "rotate"}
 
@@ -234,6 +234,9 @@ func runCompare(stdout, stderr io.Writer, args []string) error {
 	out := ""
 	if v, ok := set["out"]; ok {
 		out = v.Raw
+	}
+	if _, ok := set["pattern"]; ok {
+		return usagef("compare", "--pattern is an idealised pattern, not a tomography model; compare takes models (build and sequence take --pattern)")
 	}
 	if o.consensus == "" {
 		for _, k := range compareOnlyConsensus {

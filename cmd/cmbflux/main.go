@@ -11,6 +11,7 @@
 //	cmbflux plot bc/coefficients.txt --out map.png
 //	cmbflux sweep demo-out/sweep.yaml --out runs
 //	cmbflux sweep demo-out/sweep.yaml --out runs --resume
+//	cmbflux sequence --demo --qstar 1 --qmean 80 --lmax 6 --spin-rate 2 --times 0:10:3 --out spin
 //	cmbflux build --demo --quantity dvs --rotate 45 --formats nc --out turned
 //	cmbflux compare demo turned/field.nc
 //
@@ -127,6 +128,7 @@ func init() {
 	commands = []command{
 		{"build", "write one heat-flux boundary condition", runBuild},
 		{"sweep", "write a boundary condition for every point of a parameter sweep", runSweep},
+		{"sequence", "write time-dependent boundary conditions: a pattern turning or blending", runSequence},
 		{"inspect", "describe a tomography grid or a coefficient file; verify an output folder", runInspect},
 		{"convert", "change the convention of a coefficient file, or go between grid and coefficients", runConvert},
 		{"plot", "draw a map and a spectrum of a grid or coefficient file", runPlot},

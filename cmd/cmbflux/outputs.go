@@ -224,9 +224,12 @@ func specParams(sp *config.Spec) map[string]string {
 	p := map[string]string{
 		"lmax": fmt.Sprint(sp.LMax), "taper": sp.Taper, "quantity": sp.Quantity, "grid": sp.Grid,
 	}
-	if sp.Demo {
+	switch {
+	case sp.Demo:
 		p["input"] = "demo"
-	} else {
+	case sp.Pattern != nil:
+		p["pattern"] = config.PatternText(sp.Pattern)
+	default:
 		p["input"] = sp.Input
 	}
 	if sp.Var != "" {
@@ -241,8 +244,11 @@ func specParams(sp *config.Spec) map[string]string {
 	if sp.Rotate != 0 {
 		p["rotate"] = fmt.Sprintf("%g deg", sp.Rotate)
 	}
-	if sp.HasQStar {
+	if sp.HasQStar && sp.Measure == flux.PeakToPeak {
 		p["qstar"] = fmt.Sprint(sp.QStar)
+	} else if sp.HasQStar {
+		// The value sets another measure: never call it qstar.
+		p["measure"], p["amplitude"] = sp.Measure.String(), fmt.Sprint(sp.QStar)
 	}
 	if sp.HasQMean {
 		p["qmean"] = fmt.Sprintf("%.6g mW/m^2", sp.QMean*1e3)

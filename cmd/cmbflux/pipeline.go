@@ -64,6 +64,9 @@ func sourceKey(sp *config.Spec) string {
 }
 
 func (c *cache) source(sp *config.Spec) (*source, error) {
+	if sp.Pattern != nil {
+		return idealSource(sp), nil
+	}
 	v, err := c.get("source "+sourceKey(sp), func() (any, error) {
 		var g *tomo.Grid
 		var err error
@@ -118,6 +121,9 @@ type pattern struct {
 	flux  *flux.Pattern
 	mean  float64  // area mean of dlnVs of the layer (fraction), degree 0 of the fit
 	notes []string // what the fit reported (seam column, coverage, conditioning)
+
+	// frame places the pattern in a time sequence; nil outside one.
+	frame *sequenceFrame
 }
 
 // expansion is the fit of a layer to one degree, with the fit's notes.
@@ -127,6 +133,9 @@ type expansion struct {
 }
 
 func (c *cache) pattern(sp *config.Spec, src *source) (*pattern, error) {
+	if sp.Pattern != nil {
+		return c.idealPattern(sp)
+	}
 	fitDeg := max(sp.LMax, 1)
 	expKey := "expansion " + sourceKey(sp) + fmt.Sprintf(" lmax=%d", fitDeg)
 	if err := checkLMax(src.name, sp.LMax, src.safe, sp.ForceLMax); err != nil {
@@ -286,7 +295,7 @@ func amplitude(sp *config.Spec, pt *pattern) (*field, error) {
 	if sp.Physical {
 		f.res, err = pt.flux.WithPhysical(flux.Physical{Conductivity: sp.Conductivity, Thickness: sp.Thickness, DlnVsDT: sp.DlnVsDT}, ref)
 	} else {
-		f.res, err = pt.flux.WithQStar(sp.QStar, ref)
+		f.res, err = pt.flux.WithMeasure(sp.Measure, sp.QStar, ref)
 	}
 	if err != nil {
 		return nil, &config.Error{Key: "qstar", Err: err}
@@ -319,7 +328,7 @@ func diagnose(f *field, s *Summary) {
 	s.QAd, s.AdiabaticHeatFlowTW = d.QAd, d.AdiabaticHeatFlowTW
 	s.RMSRatio = d.RMSOverMean
 	s.AreaNegative, s.AreaSubadiabatic = d.AreaFractionNegative, d.AreaFractionSubadiabatic
-	s.Amplitude = d.Amplitude
+	s.Amplitude, s.AmplitudeSetBy = d.Amplitude, d.AmplitudeSetBy
 	s.SlowestLonLat, s.MinToSlowestDeg = lon360(d.SlowestLonLat), d.MinToSlowestDeg
 	s.Degree2PowerFraction = d.Degree2PowerFraction
 	if d.Mode == "physical" {
@@ -401,6 +410,12 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	if err != nil {
 		return nil, err
 	}
+	return produceFrom(ctx, sp, set, st, command, src, pt)
+}
+
+// produceFrom is produce for a given source and pattern (the frames of a
+// sequence turn or blend the pattern).
+func produceFrom(ctx context.Context, sp *config.Spec, set config.Set, st *outdir.Stage, command string, src *source, pt *pattern) (*Summary, error) {
 	f, err := amplitude(sp, pt)
 	if err != nil {
 		return nil, err
@@ -419,10 +434,14 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	if sp.QStarOnGrid {
 		s.QStarDefinition = "(q_max - q_min) / q_mean of the total heat flux, extrema on the points of grid " + sp.Grid
 	}
+	s.Sequence = pt.frame
 	if sp.Physical {
 		s.Mode = "physical"
 	} else if sp.HasQStar {
-		s.QStarRequested = ptr(sp.QStar)
+		s.AmplitudeMeasure = sp.Measure.String()
+		if sp.Measure == flux.PeakToPeak {
+			s.QStarRequested = ptr(sp.QStar)
+		}
 	}
 	diagnose(f, s)
 	s.Warnings = warnings(sp, src, pt, f, s)
@@ -439,12 +458,7 @@ func produce(ctx context.Context, c *cache, sp *config.Spec, set config.Set, st 
 	if err := st.WriteFile("summary.json", js); err != nil {
 		return nil, err
 	}
-	params := map[string]string{}
-	for k, v := range set {
-		if k != "out" {
-			params[k] = v.Raw
-		}
-	}
+	params := manifestParams(sp, set, src)
 	man, err := buildManifest(st.Tmp, append(append([]string(nil), files...), "summary.json"), params,
 		export.ManifestInput{Name: src.name, SHA256: src.sha256, Format: src.format}, s, command)
 	if err != nil {

@@ -59,6 +59,15 @@ type Summary struct {
 	PhysicalDeltaTMinK   *float64   `json:"physical_dt_min_k,omitempty"`
 	Warnings             []string   `json:"warnings"`
 	Files                []string   `json:"files"`
+
+	// AmplitudeMeasure names the measure that set the amplitude (qstar,
+	// qstar-superadiabatic, rms, max-deviation), "" in physical mode.
+	AmplitudeMeasure string `json:"amplitude_measure,omitempty"`
+	// AmplitudeSetBy states the measure's formula and value, e.g.
+	// "rms(q - q_mean)/q_mean = 0.2", or the physical-mode relation.
+	AmplitudeSetBy string `json:"amplitude_set_by,omitempty"`
+	// Sequence places the folder in a time sequence (cmbflux sequence).
+	Sequence *sequenceFrame `json:"sequence,omitempty"`
 }
 
 // summaryColumns are the diagnostic columns of a sweep's summary.csv.

@@ -44,6 +44,7 @@ var Groups = []string{"Input", "Pattern", "Amplitude", "Output"}
 var BuildKeys = []Key{
 	{Name: "input", Kind: String, Arg: "FILE", Group: "Input", Usage: "tomography grid (text, CSV or netCDF); - reads standard input"},
 	{Name: "demo", Kind: Bool, Group: "Input", Usage: "use the embedded demo scenario instead of --input"},
+	{Name: "pattern", Kind: List, Arg: "TERMS", Group: "Input", Usage: "an idealised pattern instead of --input or --demo: harmonics L:M[:cos|sin][:WEIGHT] separated by commas (orthonormal, no Condon-Shortley phase; positive weights raise the flux), e.g. 2:2:cos or 2:2:cos:1,1:0:cos:0.3; lmax defaults to the highest degree"},
 	{Name: "var", Kind: String, Arg: "NAME", Group: "Input", Usage: "variable (netCDF) or column (CSV) holding dVs; default: the only candidate"},
 	{Name: "units", Kind: String, Arg: "U", Group: "Input", Usage: "units of the values: percent, fraction (dlnVs), km/s or m/s (absolute Vs, with --vref); default: from the file, or guessed from the values (inspect says which)"},
 	{Name: "vref", Kind: String, Arg: "KMS", Group: "Input", Usage: "reference shear velocity in km/s for absolute velocities, dlnVs = (v - vref)/vref; mean takes each depth's area-weighted mean velocity"},
@@ -60,6 +61,8 @@ var BuildKeys = []Key{
 	{Name: "taper", Kind: String, Arg: "SPEC", Group: "Pattern", Usage: "none, cut:L, cos:L1:L2 (raised-cosine roll-off from degree L1 to L2) or gauss:DEG (Gaussian, half-width in degrees of arc)"},
 	{Name: "rotate", Kind: Float, Arg: "DEG", Group: "Pattern", Usage: "turn the pattern eastward about the rotation axis by DEG degrees"},
 	{Name: "qstar", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "heterogeneity q* = (q_max - q_min) / q_mean of the output field"},
+	{Name: "measure", Kind: String, Arg: "M", Group: "Amplitude", Usage: "what --amplitude sets: qstar (q_max - q_min)/q_mean (default), qstar-superadiabatic (q_max - q_min)/(q_mean - q_ad), rms rms(q - q_mean)/q_mean over the sphere, or max-deviation max|q - q_mean|/q_mean"},
+	{Name: "amplitude", Kind: Float, Arg: "X", Group: "Amplitude", Usage: "the value of the --measure, instead of --qstar (--qstar X is --measure qstar --amplitude X)"},
 	{Name: "qstar-on", Kind: String, Arg: "WHERE", Group: "Amplitude", Usage: "where q_max and q_min are taken: continuous (the band-limited field, default) or grid (the --grid points, for codes that see only a grid)"},
 	{Name: "qmean", Kind: Float, Arg: "MW_M2", Group: "Amplitude", Usage: "mean CMB heat flux (mW/m^2)"},
 	{Name: "heatflow", Kind: Float, Arg: "TW", Group: "Amplitude", Usage: "total CMB heat flow (TW), instead of --qmean"},

@@ -8,6 +8,8 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"cmbflux/flux"
 )
 
 // CMBRadius is the radius of the core-mantle boundary in metres (PREM,
@@ -32,6 +34,10 @@ type Spec struct {
 	Demo  bool
 	Var   string
 
+	// Pattern holds the terms of an idealised pattern (--pattern); nil
+	// for a tomography input.
+	Pattern []flux.Term
+
 	// Reading options (tomo.ReadOptions, tomo.UnitOptions).
 	Units          string  // percent, fraction, km/s, m/s; "" guesses
 	VRef           float64 // km/s; 0 when not given
@@ -55,8 +61,12 @@ type Spec struct {
 	Taper     string // as written; "none" by default
 	Rotate    float64
 
+	// QStar is the value of the amplitude Measure (--qstar, or
+	// --amplitude with --measure); HasQStar reports that one was given.
 	QStar    float64
 	HasQStar bool
+	// Measure is what QStar sets (--measure; flux.PeakToPeak by default).
+	Measure flux.Measure
 	// QStarOnGrid measures q* on the Grid points instead of the continuous
 	// field.
 	QStarOnGrid bool
@@ -117,6 +127,9 @@ func Resolve(s Set) (*Spec, error) {
 
 	// Input.
 	sp.Demo = b("demo")
+	if err := resolvePattern(s, sp); err != nil {
+		return nil, err
+	}
 	if v, ok := s["input"]; ok {
 		if sp.Demo {
 			return nil, bad("input", "give either --input or --demo, not both")
@@ -128,8 +141,8 @@ func Resolve(s Set) (*Spec, error) {
 		if v.Raw != "-" && !filepath.IsAbs(v.Raw) && v.Src.Dir != "" {
 			sp.Input = filepath.Join(v.Src.Dir, v.Raw)
 		}
-	} else if !sp.Demo {
-		return nil, &Error{Key: "input", Err: errors.New("no input: give --input FILE or --demo")}
+	} else if !sp.Demo && sp.Pattern == nil {
+		return nil, &Error{Key: "input", Err: errors.New("no input: give --input FILE, --demo or --pattern TERMS")}
 	}
 	if v, ok := s["var"]; ok {
 		sp.Var = v.Raw
@@ -300,6 +313,10 @@ func Resolve(s Set) (*Spec, error) {
 				return nil, bad(n, "only used with --physical")
 			}
 		}
+	}
+
+	if err := resolveMeasure(s, sp); err != nil {
+		return nil, err
 	}
 
 	// Output.

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -352,8 +353,11 @@ func variantSource(sp *config.Spec, name string) (*source, error) {
 	return &source{layer: l, safe: tomo.SafeDegree(l), name: "demo-" + name, sha256: g.Source.SHA256, format: g.Source.Format}, nil
 }
 
-// patterns returns the frames' patterns with their sequence positions.
-func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) ([]*pattern, []string, error) {
+// patterns returns a function making the pattern of frame i with its
+// sequence position, and the sequence's own warnings. The frames are made
+// one at a time (flux.SpinSequence or flux.BlendSequence at one time each),
+// so that a long sequence holds one frame's search grids at a time.
+func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) (func(i int) (*pattern, error), []string, error) {
 	sp := r.sp
 	build := func(q *flux.Pattern) (*flux.Result, error) {
 		f, err := amplitude(sp, &pattern{flux: q, mean: base.mean})
@@ -365,19 +369,19 @@ func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) ([]*pattern
 		}
 		return f.res, nil
 	}
-	var frames []flux.Frame
 	var err error
 	var warns []string
-	out := make([]*pattern, len(r.times))
 	if r.blendTo == "" {
-		if frames, err = flux.SpinSequence(base.flux, r.spin, r.times, build); err != nil {
-			return nil, nil, seqError(err)
-		}
 		pole := [2]float64{r.spin.PoleLon, r.spin.PoleLat}
-		for i, fr := range frames {
+		frame := func(i int) (*pattern, error) {
+			frames, err := flux.SpinSequence(base.flux, r.spin, r.times[i:i+1], build)
+			if err != nil {
+				return nil, seqError(err)
+			}
+			fr := frames[0]
 			a := r.spin.Rate * fr.Time
-			out[i] = &pattern{flux: fr.Result.Pattern, mean: base.mean, notes: base.notes,
-				frame: &sequenceFrame{Index: i, Time: fr.Time, RotationDeg: &a, PoleLonLat: &pole}}
+			return &pattern{flux: fr.Result.Pattern, mean: base.mean, notes: base.notes,
+				frame: &sequenceFrame{Index: i, Time: fr.Time, RotationDeg: &a, PoleLonLat: &pole}}, nil
 		}
 		if r.spin.Rate == 0 {
 			warns = append(warns, "static sequence: --spin-rate 0 gives the same boundary condition at every time")
@@ -394,7 +398,13 @@ func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) ([]*pattern
 				warns = append(warns, fmt.Sprintf("coarse time sampling: the pattern turns up to %.4g degrees between samples, more than %.4g degrees, the half-wavelength of degree %d: a code interpolating between the frames blurs or aliases the structure instead of turning it; sample more times", step, half, sp.LMax))
 			}
 		}
-		return out, warns, nil
+		return frame, warns, nil
+	}
+	for _, t := range r.times {
+		// As flux.BlendSequence checks, before anything is built.
+		if w := (t - r.t0) / (r.t1 - r.t0); w < -1e-12 || w > 1+1e-12 {
+			return nil, nil, usagef("sequence", "--times: time %g lies outside the blend span [%g, %g] (--blend-span, default the first to the last time); a blend does not extrapolate", t, r.t0, r.t1)
+		}
 	}
 	bsp, err := r.blendSpec()
 	if err != nil {
@@ -414,9 +424,6 @@ func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) ([]*pattern
 	if err != nil {
 		return nil, nil, fmt.Errorf("--blend-to: %w", err)
 	}
-	if frames, err = flux.BlendSequence(base.flux, bpt.flux, r.t0, r.t1, r.times, build); err != nil {
-		return nil, nil, seqError(err)
-	}
 	notes := append([]string(nil), base.notes...)
 	for _, n := range bpt.notes {
 		notes = append(notes, bsrc.name+": "+n)
@@ -424,12 +431,17 @@ func (r *sequenceRun) patterns(c *cache, src *source, base *pattern) ([]*pattern
 	for _, lw := range bsrc.layer.Warnings {
 		warns = append(warns, "input: "+bsrc.name+": "+flagHint(lw))
 	}
-	for i, fr := range frames {
+	frame := func(i int) (*pattern, error) {
+		frames, err := flux.BlendSequence(base.flux, bpt.flux, r.t0, r.t1, r.times[i:i+1], build)
+		if err != nil {
+			return nil, seqError(err)
+		}
+		fr := frames[0]
 		w := (fr.Time - r.t0) / (r.t1 - r.t0)
-		out[i] = &pattern{flux: fr.Result.Pattern, mean: (1-w)*base.mean + w*bpt.mean, notes: notes,
-			frame: &sequenceFrame{Index: i, Time: fr.Time, BlendWeight: &w, BlendTo: bsrc.name}}
+		return &pattern{flux: fr.Result.Pattern, mean: (1-w)*base.mean + w*bpt.mean, notes: notes,
+			frame: &sequenceFrame{Index: i, Time: fr.Time, BlendWeight: &w, BlendTo: bsrc.name}}, nil
 	}
-	return out, warns, nil
+	return frame, warns, nil
 }
 
 func isVariant(input string) bool {
@@ -444,8 +456,8 @@ func isVariant(input string) bool {
 // seqError makes the flux package's setting errors (a time outside the
 // blend span) usage errors.
 func seqError(err error) error {
-	if err == nil {
-		return nil
+	if err == nil || errors.Is(err, config.ErrBadConfig) || !errors.Is(err, flux.ErrSetting) {
+		return err // a build setting's error names its flag already
 	}
 	return usagef("sequence", "--times: %v", strings.TrimPrefix(err.Error(), flux.ErrSetting.Error()+": "))
 }
@@ -462,7 +474,7 @@ func (r *sequenceRun) write(ctx context.Context, force bool) ([]seqRow, []string
 	if err != nil {
 		return nil, nil, err
 	}
-	pts, warns, err := r.patterns(c, src, base)
+	frame, warns, err := r.patterns(c, src, base)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -474,12 +486,16 @@ func (r *sequenceRun) write(ctx context.Context, force bool) ([]seqRow, []string
 		return nil, nil, err
 	}
 	defer st.Abort()
-	rows := make([]seqRow, len(pts))
+	rows := make([]seqRow, len(r.times))
 	classes := map[string][]string{} // warning class -> texts, in frame order
 	var order []string
 	var files []string
-	for i, pt := range pts {
+	for i := range r.times {
 		if err := ctx.Err(); err != nil {
+			return nil, nil, err
+		}
+		pt, err := frame(i)
+		if err != nil {
 			return nil, nil, err
 		}
 		name := frameName(i, r.times[i])

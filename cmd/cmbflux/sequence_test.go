@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"math"
 	"os"
@@ -8,7 +9,9 @@ import (
 	"strings"
 	"testing"
 
+	"cmbflux/cmd/cmbflux/internal/config"
 	"cmbflux/export"
+	"cmbflux/flux"
 	"cmbflux/flux/sh"
 )
 
@@ -263,4 +266,30 @@ func FuzzParseSequenceFlags(f *testing.F) {
 			t.Fatalf("span %q: %v is not a usage error", s, err)
 		}
 	})
+}
+
+// TestSequenceInterruptedLeavesNothing checks the staging: a run stopped
+// between frames (a cancelled context, as Ctrl-C gives) leaves neither the
+// output folder nor its temporary folder behind.
+func TestSequenceInterruptedLeavesNothing(t *testing.T) {
+	t.Chdir(t.TempDir())
+	set := config.Set{}
+	for k, v := range map[string]string{"pattern": "2:2", "qstar": "1", "qmean": "80", "out": "seq"} {
+		if err := set.SetFlag(k, v); err != nil {
+			t.Fatal(err)
+		}
+	}
+	sp, err := config.Resolve(set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := &sequenceRun{sp: sp, set: set, times: []float64{0, 1, 2}, spin: flux.Spin{PoleLat: 90, Rate: 1}}
+	if _, _, err := r.write(ctx, false); !errors.Is(err, context.Canceled) {
+		t.Fatalf("write with a cancelled context: %v", err)
+	}
+	if ents, _ := os.ReadDir("."); len(ents) != 0 {
+		t.Errorf("left %q behind", ents[0].Name())
+	}
 }

@@ -12,9 +12,14 @@ import (
 // a tomography layer: no file, no velocities, any degree.
 func idealSource(sp *config.Spec) *source {
 	text := config.PatternText(sp.Pattern)
+	top := 1
+	for _, t := range sp.Pattern {
+		top = max(top, t.L)
+	}
+	// The pattern holds structure up to its highest degree, exactly.
 	return &source{
 		layer: &tomo.Layer{Description: "idealised pattern " + text + " (orthonormal harmonics without Condon-Shortley phase; no tomography)"},
-		safe:  tomo.DegreeLimit{Lmax: 1000, Nyquist: 1000, GapLimit: 1000, Reason: "an idealised pattern is exact at every degree"},
+		safe:  tomo.DegreeLimit{Lmax: top, Nyquist: top, GapLimit: top, Reason: "the highest degree of the idealised pattern"},
 		name:  "pattern " + text,
 	}
 }

@@ -206,3 +206,17 @@ func TestMeasureInHeaders(t *testing.T) {
 		t.Errorf("manifest parameters %v; want measure rms, amplitude 0.2, the pattern, no qstar", m.Params)
 	}
 }
+
+// TestPatternRotate checks --rotate on an idealised pattern: Y_1^1 (cos)
+// is proportional to cos(lon) on the equator, so turned east by 30
+// degrees its flux maximum lies at lon 30, lat 0 and its minimum at
+// lon 210 (closed form).
+func TestPatternRotate(t *testing.T) {
+	s := buildSummary(t, "--pattern", "1:1:cos", "--qstar", "1", "--qmean", "80", "--rotate", "30")
+	if math.Abs(s.QMaxLonLat[0]-30) > 1e-6 || math.Abs(s.QMaxLonLat[1]) > 1e-6 || math.Abs(s.QMinLonLat[0]-210) > 1e-6 {
+		t.Errorf("q_max at %v, q_min at %v; want (30, 0) and (210, 0)", s.QMaxLonLat, s.QMinLonLat)
+	}
+	if s.LMaxResolved != 1 {
+		t.Errorf("lmax_resolved_by_input %d, want 1, the highest degree of the pattern", s.LMaxResolved)
+	}
+}

@@ -293,3 +293,21 @@ func TestSequenceInterruptedLeavesNothing(t *testing.T) {
 		t.Errorf("left %q behind", ents[0].Name())
 	}
 }
+
+// TestSequenceFrameIsBuild checks that a spin frame about the north pole
+// is the build of the same pattern turned by --rotate rate*t: the two
+// paths (flux.Pattern.Rotate and a rotated input) must give the same
+// coefficients.
+func TestSequenceFrameIsBuild(t *testing.T) {
+	dirs := runSequenceCLI(t, "--pattern", "2:1:cos,3:2:sin:0.5", "--qstar", "1.5", "--qmean", "80", "--spin-rate", "4", "--times", "0,5")
+	got := readFrameCoeffs(t, dirs[1])
+	if _, errs, code := cli([]string{"build", "--pattern", "2:1:cos,3:2:sin:0.5", "--qstar", "1.5", "--qmean", "80", "--rotate", "20", "--out", "b", "--quiet"}, ""); code != 0 {
+		t.Fatalf("build: %s", errs)
+	}
+	want := readFrameCoeffs(t, "b")
+	for i := range want.C {
+		if math.Abs(got.C[i]-want.C[i]) > 1e-12*math.Abs(want.C[0]) || math.Abs(got.S[i]-want.S[i]) > 1e-12*math.Abs(want.C[0]) {
+			t.Errorf("coefficient %d: frame (%g, %g), build --rotate 20 (%g, %g)", i, got.C[i], got.S[i], want.C[i], want.S[i])
+		}
+	}
+}

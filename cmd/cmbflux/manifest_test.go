@@ -48,3 +48,27 @@ func TestManifestRebuilds(t *testing.T) {
 		t.Errorf("the rebuild from the manifest (%v) wrote another coefficient table", args)
 	}
 }
+
+// TestManifestInputPath: an input named in a build file is relative to the
+// file's folder; the manifest records the path as resolved, so that a
+// rebuild from the manifest reads the same file.
+func TestManifestInputPath(t *testing.T) {
+	t.Chdir(t.TempDir())
+	data, err := os.ReadFile(demoFile("brindle.txt"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Mkdir("sub", 0o755); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, "sub/brindle.txt", string(data))
+	writeFile(t, "sub/build.yaml", "input: brindle.txt\nqstar: 1\nqmean: 80\nlmax: 6\n")
+	mustCLI(t, "build", "--config", "sub/build.yaml", "--out", "bc")
+	m, err := export.ReadManifestFile("bc/manifest.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := m.Params["input"]; got != "sub/brindle.txt" {
+		t.Errorf("manifest input %q, want sub/brindle.txt", got)
+	}
+}

@@ -325,6 +325,10 @@ func manifestParams(sp *config.Spec, set config.Set, src *source) map[string]str
 			p[k] = v.Raw
 		}
 	}
+	if sp.Input != "" {
+		// As resolved: a path in a build file is relative to its folder.
+		p["input"] = sp.Input
+	}
 	if _, ok := set["heatflow"]; ok {
 		delete(p, "qmean")
 	}

@@ -76,26 +76,8 @@ func runBuild(stdout, stderr io.Writer, args []string) error {
 	if len(pos) > 0 {
 		return usagef("build", "unexpected argument %q; build takes only flags", pos[0])
 	}
-	set := p.keys
-	if o.config != "" {
-		data, name, err := readInput(o.config)
-		if err != nil {
-			return err
-		}
-		file, err := config.ParseBuild(name, data)
-		if err != nil {
-			return err
-		}
-		set = file.Merge(p.keys)
-	}
-	sp, err := config.Resolve(set)
+	set, sp, err := resolveBuildSpec("build", o.config, p.keys)
 	if err != nil {
-		return err
-	}
-	if sp.Out == "" {
-		return usagef("build", "no output folder: give --out DIR")
-	}
-	if err := validateSpec(sp); err != nil {
 		return err
 	}
 	// Ctrl-C or SIGTERM stops the build between stages and removes the
@@ -227,4 +209,34 @@ func shellQuote(a string) string {
 		return a
 	}
 	return "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
+}
+
+// resolveBuildSpec merges the flags given (keys) over the build file named
+// by configPath (if any), resolves the result and checks it, for a command
+// that writes a build-like output folder; cmd names the command in usage
+// errors. It returns the merged key set too, for the manifest.
+func resolveBuildSpec(cmd, configPath string, keys config.Set) (config.Set, *config.Spec, error) {
+	set := keys
+	if configPath != "" {
+		data, name, err := readInput(configPath)
+		if err != nil {
+			return nil, nil, err
+		}
+		file, err := config.ParseBuild(name, data)
+		if err != nil {
+			return nil, nil, err
+		}
+		set = file.Merge(keys)
+	}
+	sp, err := config.Resolve(set)
+	if err != nil {
+		return nil, nil, err
+	}
+	if sp.Out == "" {
+		return nil, nil, usagef(cmd, "no output folder: give --out DIR")
+	}
+	if err := validateSpec(sp); err != nil {
+		return nil, nil, err
+	}
+	return set, sp, nil
 }

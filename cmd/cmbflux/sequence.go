@@ -234,26 +234,8 @@ func runSequence(stdout, stderr io.Writer, args []string) error {
 			return usagef("sequence", "a blend over one time needs --blend-span T0:T1")
 		}
 	}
-	set := p.keys
-	if o.config != "" {
-		data, name, err := readInput(o.config)
-		if err != nil {
-			return err
-		}
-		file, err := config.ParseBuild(name, data)
-		if err != nil {
-			return err
-		}
-		set = file.Merge(p.keys)
-	}
-	sp, err := config.Resolve(set)
+	set, sp, err := resolveBuildSpec("sequence", o.config, p.keys)
 	if err != nil {
-		return err
-	}
-	if sp.Out == "" {
-		return usagef("sequence", "no output folder: give --out DIR")
-	}
-	if err := validateSpec(sp); err != nil {
 		return err
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)

@@ -317,24 +317,8 @@ func parseCoeffCSV(data []byte, name string) (*parsed, error) {
 			}
 		}
 	}
-	cr := csv.NewReader(bytes.NewReader(bytes.TrimPrefix(data, []byte("\ufeff"))))
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
 	cols := [4]string{"l", "m", "value 1", "value 2"}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, inputErr(name, pe.Line, "%v", pe.Err)
-			}
-			return nil, fmt.Errorf("%s: %w", name, err)
-		}
-		ln, _ := cr.FieldPos(0)
+	err := eachCSVRecord(name, bytes.TrimPrefix(data, []byte("\ufeff")), func(ln int, rec []string) error {
 		for i := range rec {
 			rec[i] = strings.TrimSpace(rec[i])
 		}
@@ -342,20 +326,52 @@ func parseCoeffCSV(data []byte, name string) (*parsed, error) {
 			if p.ours() {
 				want := p.header["columns"].v
 				if got := strings.Join(rec, " "); got != want {
-					return nil, inputErr(name, ln, "heading %q does not match the header's columns %q", strings.Join(rec, ","), want)
+					return inputErr(name, ln, "heading %q does not match the header's columns %q", strings.Join(rec, ","), want)
 				}
 			} else {
 				p.warnings = append(p.warnings, fmt.Sprintf("%s:%d: skipped as a heading line: %q", name, ln, strings.Join(rec, ",")))
 			}
-			continue
+			return nil
 		}
 		r, err := parseRow(name, ln, rec, cols)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		p.rows = append(p.rows, r)
+		return nil
+	})
+	if err != nil {
+		return nil, err
 	}
 	return p, nil
+}
+
+// eachCSVRecord calls fn with the 1-based line and the fields of every
+// record of the CSV text data (RFC 4180 quoting, '#' comment lines, any
+// number of fields per record, leading spaces trimmed); a CSV syntax error
+// becomes an InputError at its line, and fn's error stops the reading.
+func eachCSVRecord(name string, data []byte, fn func(line int, rec []string) error) error {
+	cr := csv.NewReader(bytes.NewReader(data))
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return inputErr(name, pe.Line, "%v", pe.Err)
+			}
+			return fmt.Errorf("%s: %w", name, err)
+		}
+		ln, _ := cr.FieldPos(0)
+		if err := fn(ln, rec); err != nil {
+			return err
+		}
+	}
 }
 
 // lineAt returns the 1-based line of byte offset off in data.

@@ -3,7 +3,6 @@ package export
 import (
 	"bufio"
 	"bytes"
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -122,35 +121,21 @@ func ReadGrid(r io.Reader, name string) (*GridTable, error) {
 	}
 	if csvForm && bodyLine > 0 {
 		body = data
-		cr := csv.NewReader(bytes.NewReader(body))
-		cr.Comment = '#'
-		cr.FieldsPerRecord = -1
 		first := true
-		for {
-			rec, err := cr.Read()
-			if err == io.EOF {
-				break
-			}
-			if err != nil {
-				var pe *csv.ParseError
-				if errors.As(err, &pe) {
-					return nil, inputErr(name, pe.Line, "%v", pe.Err)
-				}
-				return nil, fmt.Errorf("%s: %w", name, err)
-			}
-			ln, _ := cr.FieldPos(0)
+		err := eachCSVRecord(name, body, func(ln int, rec []string) error {
 			if first {
 				first = false
 				if _, err := strconv.ParseFloat(strings.TrimSpace(rec[0]), 64); err != nil {
 					if len(rec) == 3 {
 						t.Grid.Name = strings.TrimSpace(rec[2])
 					}
-					continue
+					return nil
 				}
 			}
-			if err := addRow(ln, rec); err != nil {
-				return nil, err
-			}
+			return addRow(ln, rec)
+		})
+		if err != nil {
+			return nil, err
 		}
 	}
 	if p.header != nil {
